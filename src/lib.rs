@@ -1,12 +1,20 @@
 #![doc = include_str!("../README.md")]
 #![cfg_attr(not(any(test, feature = "std")), no_std)]
 
+pub mod commissioning;
 pub mod error;
 pub mod geometry;
 pub mod gravity;
+pub mod modes;
+pub mod steady;
 pub mod units;
+
+#[cfg(feature = "std")]
+pub mod reference;
 
 pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
+pub use modes::{SwingMode, SwingModes};
+pub use steady::{Sensitivity, SteadyState};
 pub use units::{Angle, AngularSpeed, DriveReference, DriveScale, GearRatio};

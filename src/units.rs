@@ -256,12 +256,7 @@ impl DriveScale {
     #[must_use]
     pub fn reference(self, shaft: AngularSpeed) -> DriveReference {
         let raw = self.gear.motor_speed(shaft).rad_per_s() / self.full_scale_motor_rad_s;
-        if raw.is_nan() {
-            DriveReference {
-                fraction: 0.0,
-                saturated: true,
-            }
-        } else if raw < 0.0 {
+        if raw.is_nan() || raw < 0.0 {
             DriveReference {
                 fraction: 0.0,
                 saturated: true,
