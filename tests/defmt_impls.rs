@@ -1,0 +1,27 @@
+//! Compile-time check that every public type can be logged with defmt.
+//! Adding a public type? Add it here too.
+#![cfg(feature = "defmt")]
+
+use swingdrive::{
+    Angle, AngularSpeed, DriveReference, DriveScale, GearRatio, Gravity, ParamError, RideGeometry,
+    Sensitivity, SteadyState, Suspension, SwingMode, SwingModes,
+};
+
+fn loggable<T: defmt::Format>() {}
+
+#[test]
+fn public_types_implement_defmt_format() {
+    loggable::<Angle>();
+    loggable::<AngularSpeed>();
+    loggable::<DriveReference>();
+    loggable::<DriveScale>();
+    loggable::<GearRatio>();
+    loggable::<Gravity>();
+    loggable::<ParamError>();
+    loggable::<RideGeometry>();
+    loggable::<Sensitivity>();
+    loggable::<SteadyState>();
+    loggable::<Suspension>();
+    loggable::<SwingMode>();
+    loggable::<SwingModes>();
+}
