@@ -69,8 +69,8 @@ proptest! {
     /// Swing modes: the hand-derived f32 formulas against the reference's
     /// numerical Hessian and Coriolis coefficient at the same angle. Both
     /// frequencies within 2e-5 of the fast (or only) mode: f32 rounding of
-    /// the stiffnesses (~10 ε) plus the reference's finite-difference error
-    /// (h = 1e-4, truncation ~h² ≈ 1e-8, rounding ~ε₆₄/h² ≈ 2e-8, relative).
+    /// the stiffnesses and of the angle they are evaluated at (~10 ε ≈ 1e-6)
+    /// plus the reference's five-point stencils (≲ 1e-8 relative).
     #[test]
     fn swing_modes(r0 in 0.0_f32..15.0, l in 1.0_f32..20.0, deg in 0.5_f32..85.0, chain: bool) {
         let (g, r) = pair(r0, l, chain);

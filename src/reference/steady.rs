@@ -26,6 +26,25 @@ pub struct Ride {
 /// on [0, π/2].
 const BISECTION_ITERATIONS: u32 = 200;
 
+/// Step of the first-derivative stencil, rad: truncation ~h⁴ ≈ 1e-12,
+/// rounding ~ε₆₄/h ≈ 2e-13 (relative).
+const FIRST_STEP: f64 = 1e-3;
+
+/// Step of the second-derivative stencil, rad: truncation ~h⁴ ≈ 1e-8,
+/// rounding ~ε₆₄·|U|/h² ≈ 2e-12·|U| (a smaller step would drown small
+/// stiffnesses in the rounding of U).
+const SECOND_STEP: f64 = 1e-2;
+
+/// Five-point central first derivative of `f` at 0.
+fn first_derivative(f: impl Fn(f64) -> f64, h: f64) -> f64 {
+    (f(-2.0 * h) - 8.0 * f(-h) + 8.0 * f(h) - f(2.0 * h)) / (12.0 * h)
+}
+
+/// Five-point central second derivative of `f` at 0.
+fn second_derivative(f: impl Fn(f64) -> f64, h: f64) -> f64 {
+    (-f(-2.0 * h) + 16.0 * f(-h) - 30.0 * f(0.0) + 16.0 * f(h) - f(2.0 * h)) / (12.0 * h * h)
+}
+
 impl Ride {
     /// ω (rad/s) for a steady angle φ (rad) in [0, π/2): √(g tan φ / (r0 + L sin φ)).
     #[must_use]
@@ -95,17 +114,15 @@ impl Ride {
     /// the position numerically.
     fn coriolis_form(&self, w: f64, q: [f64; 2]) -> [f64; 2] {
         let [x, y, _] = self.position(q[0], q[1]);
-        let h = 1e-6;
         let mut a = [0.0; 2];
         for (i, ai) in a.iter_mut().enumerate() {
-            let mut qp = q;
-            let mut qm = q;
-            qp[i] += h;
-            qm[i] -= h;
-            let pp = self.position(qp[0], qp[1]);
-            let pm = self.position(qm[0], qm[1]);
-            let dx = (pp[0] - pm[0]) / (2.0 * h);
-            let dy = (pp[1] - pm[1]) / (2.0 * h);
+            let along = |t: f64| {
+                let mut qt = q;
+                qt[i] += t;
+                self.position(qt[0], qt[1])
+            };
+            let dx = first_derivative(|t| along(t)[0], FIRST_STEP);
+            let dy = first_derivative(|t| along(t)[1], FIRST_STEP);
             *ai = w * (x * dy - y * dx);
         }
         a
@@ -120,22 +137,19 @@ impl Ride {
     #[must_use]
     pub fn swing_modes(&self, phi: f64) -> (f64, Option<f64>) {
         let w = self.speed_for_angle(phi);
-        let q = [phi, 0.0];
-        let h = 1e-4;
-        let u = |dq0: f64, dq1: f64| self.potential(w, [q[0] + dq0, q[1] + dq1]);
-        let k11 = (u(h, 0.0) - 2.0 * u(0.0, 0.0) + u(-h, 0.0)) / (h * h);
-        let k22 = (u(0.0, h) - 2.0 * u(0.0, 0.0) + u(0.0, -h)) / (h * h);
-        let k12 = (u(h, h) - u(h, -h) - u(-h, h) + u(-h, -h)) / (4.0 * h * h);
+        let u = |dq0: f64, dq1: f64| self.potential(w, [phi + dq0, dq1]);
+        let h = SECOND_STEP;
+        let k11 = second_derivative(|t| u(t, 0.0), h);
+        let k22 = second_derivative(|t| u(0.0, t), h);
+        // Mixed derivative as the first derivative of a first derivative.
+        let k12 = first_derivative(|t| first_derivative(|v| u(t, v), FIRST_STEP), FIRST_STEP);
         let m = self.length_m * self.length_m;
         if !self.chain {
             return ((k11 / m).max(0.0).sqrt(), None);
         }
-        let a_psi_plus = self.coriolis_form(w, [phi + h, 0.0])[1];
-        let a_psi_minus = self.coriolis_form(w, [phi - h, 0.0])[1];
-        let a_theta_plus = self.coriolis_form(w, [phi, h])[0];
-        let a_theta_minus = self.coriolis_form(w, [phi, -h])[0];
-        let gamma =
-            (a_psi_plus - a_psi_minus) / (2.0 * h) - (a_theta_plus - a_theta_minus) / (2.0 * h);
+        let a_psi = |t: f64| self.coriolis_form(w, [phi + t, 0.0])[1];
+        let a_theta = |t: f64| self.coriolis_form(w, [phi, t])[0];
+        let gamma = first_derivative(a_psi, FIRST_STEP) - first_derivative(a_theta, FIRST_STEP);
         // (k11 − Ω²m)(k22 − Ω²m) − k12² − Ω²γ² = 0, a quadratic in Ω².
         let a = m * m;
         let b = -(m * (k11 + k22) + gamma * gamma);

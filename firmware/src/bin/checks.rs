@@ -1,0 +1,31 @@
+//! On-target checks: the same vectors as the host tests, computed on the
+//! emulated core and compared with the f64 reference. Ends with the line
+//! `N passed, N failed` and exits 0 only when nothing failed.
+#![no_std]
+#![no_main]
+
+use cortex_m_rt::entry;
+use swingdrive_firmware::checks::{self, Tally};
+use swingdrive_firmware::{exit, say};
+
+#[entry]
+fn main() -> ! {
+    let mut tally = Tally::default();
+    checks::steady_state(&mut tally);
+    say(format_args!(
+        "{} of {} results bit-identical to the host's f32",
+        tally.bit_identical,
+        tally.passed + tally.failed
+    ));
+    say(format_args!(
+        "{} passed, {} failed",
+        tally.passed, tally.failed
+    ));
+    exit(u32::from(tally.failed > 0))
+}
+
+#[panic_handler]
+fn panic(info: &core::panic::PanicInfo<'_>) -> ! {
+    say(format_args!("panic: {info}"));
+    exit(101)
+}

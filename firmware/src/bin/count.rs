@@ -1,0 +1,73 @@
+//! Instruction-count harness: each measured call sits between two marker
+//! functions; tools/count_instructions.py counts the instructions QEMU executes
+//! from the return of `measure_begin(id)` to the entry of `measure_end`.
+//! The count includes loading the arguments and the call itself (a handful of
+//! instructions), so it is an upper bound on the function's own cost.
+#![no_std]
+#![no_main]
+
+use core::hint::black_box;
+use cortex_m_rt::entry;
+use swingdrive::{Angle, AngularSpeed, Gravity, RideGeometry, Suspension};
+use swingdrive_firmware::exit;
+
+/// Marks the start of measurement `id` (read from r0 in the trace).
+#[no_mangle]
+#[inline(never)]
+pub extern "C" fn measure_begin(id: u32) {
+    black_box(id);
+    cortex_m::asm::nop();
+}
+
+/// Marks the end of the current measurement.
+#[no_mangle]
+#[inline(never)]
+pub extern "C" fn measure_end() {
+    cortex_m::asm::nop();
+    cortex_m::asm::nop();
+}
+
+/// Runs `f` between the markers; its result is kept alive with `black_box`.
+#[inline(always)]
+fn measure<T>(id: u32, f: impl FnOnce() -> T) {
+    measure_begin(id);
+    black_box(f());
+    measure_end();
+}
+
+#[entry]
+fn main() -> ! {
+    let ride = RideGeometry::new(
+        black_box(3.6),
+        black_box(6.2),
+        Suspension::Chain,
+        Gravity::STANDARD,
+    );
+    if let Ok(ride) = ride {
+        // 1: angle for speed at a typical operating point (Newton converges).
+        measure(1, || {
+            ride.angle_for_speed(AngularSpeed::from_rad_per_s(black_box(1.1)))
+        });
+        // 2: speed for angle (closed form).
+        measure(2, || ride.speed_for_angle(Angle::from_rad(black_box(0.75))));
+    }
+    // 3: angle for speed near the r0 → 0 bifurcation, where bisection takes over (worst case).
+    if let Ok(near_axis) = RideGeometry::new(
+        black_box(1e-4),
+        black_box(6.2),
+        Suspension::Chain,
+        Gravity::STANDARD,
+    ) {
+        // √(g/L) for L = 6.2 m, just above the bifurcation.
+        let w = 1.257_667_f32 * 1.000_01;
+        measure(3, || {
+            near_axis.angle_for_speed(AngularSpeed::from_rad_per_s(black_box(w)))
+        });
+    }
+    exit(0)
+}
+
+#[panic_handler]
+fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
+    exit(101)
+}

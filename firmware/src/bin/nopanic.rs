@@ -1,0 +1,77 @@
+//! No-panic proof at link time.
+//!
+//! Calls every per-tick and planning entry point of the library on inputs the
+//! optimiser cannot see through (`black_box`). The panic handler calls a
+//! function that does not exist, so if any panic path survives optimisation
+//! and is reachable, the link fails with an error naming it. Only a release
+//! build proves anything (debug builds keep panic paths the optimiser would
+//! remove). A build that links is the proof; running it only shows it starts.
+#![no_std]
+#![no_main]
+
+use core::hint::black_box;
+use cortex_m_rt::entry;
+use swingdrive::{
+    commissioning, Angle, AngularSpeed, DriveScale, GearRatio, Gravity, RideGeometry, Suspension,
+};
+use swingdrive_firmware::{exit, say};
+
+/// Exercises the steady-state physics: every public function of the
+/// geometry, units and commissioning modules that firmware would call.
+fn steady_state() -> f32 {
+    let mut acc = 0.0;
+    let suspension = if black_box(true) {
+        Suspension::Chain
+    } else {
+        Suspension::Rod
+    };
+    let gravity = Gravity::wgs84(black_box(48.0), black_box(300.0)).unwrap_or(Gravity::STANDARD);
+    if let Ok(ride) = RideGeometry::new(black_box(3.6), black_box(6.2), suspension, gravity) {
+        if let Ok(state) = ride.steady_state_at_speed(AngularSpeed::from_rad_per_s(black_box(1.1)))
+        {
+            acc += state.angle.rad() + state.sensitivity.deg_per_rpm();
+            acc += ride.swing_modes(&state).slowest().period_s();
+        }
+        if let Ok(state) = ride.steady_state_at_angle(Angle::from_rad(black_box(0.7))) {
+            acc += state.speed.rpm();
+        }
+        acc += ride.angle_from_rise(black_box(1.0)).map_or(0.0, Angle::rad);
+    }
+    acc += commissioning::angle_from_tension_ratio(black_box(1.2)).map_or(0.0, Angle::rad);
+    acc += commissioning::length_from_steady_angle(
+        black_box(3.6),
+        Angle::from_rad(black_box(0.7)),
+        AngularSpeed::from_rad_per_s(black_box(1.0)),
+        gravity,
+    )
+    .unwrap_or(0.0);
+    acc += commissioning::length_from_swing_period(black_box(5.0), Angle::ZERO, gravity)
+        .unwrap_or(0.0);
+    if let Ok(gear) = GearRatio::new(black_box(120.0)) {
+        if let Ok(scale) = DriveScale::new(gear, AngularSpeed::from_rpm(black_box(1500.0))) {
+            acc += scale
+                .reference(AngularSpeed::from_rad_per_s(black_box(1.0)))
+                .fraction;
+            acc += scale.shaft_speed(black_box(0.5)).rad_per_s();
+        }
+    }
+    acc
+}
+
+#[entry]
+fn main() -> ! {
+    let total = black_box(steady_state());
+    say(format_args!("no-panic image runs: {}", total.is_finite()));
+    exit(0)
+}
+
+#[panic_handler]
+fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
+    extern "Rust" {
+        // Never defined: referencing it makes any reachable panic a link error.
+        #[link_name = "\n\nerror: a panic path is reachable from the swingdrive entry points called in nopanic.rs\n\n"]
+        fn panic_path_is_reachable() -> !;
+    }
+    // SAFETY: never executed in an image that links; the symbol does not exist.
+    unsafe { panic_path_is_reachable() }
+}

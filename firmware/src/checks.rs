@@ -1,0 +1,105 @@
+//! The check runner: each case computes a value on the target and compares it
+//! with the f64 reference (within the stated tolerance) and with the host's
+//! f32 bits (informational: identical IEEE arithmetic should agree exactly).
+
+use swingdrive::{Angle, AngularSpeed, Gravity, RideGeometry, Suspension, SwingModes};
+
+/// One check vector.
+pub struct Case {
+    /// Hub offset, m.
+    pub hub_offset_m: f32,
+    /// Effective length, m.
+    pub length_m: f32,
+    /// Chains (`true`) or hinged rods.
+    pub chain: bool,
+    /// The input (an angle in rad or a speed in rad/s).
+    pub input: f32,
+    /// The f64 reference's answer.
+    pub expected: f64,
+    /// Largest accepted |target − reference|.
+    pub tolerance: f64,
+    /// The host's f32 answer, as bits.
+    pub host_bits: u32,
+}
+
+/// Tally of a run.
+#[derive(Default)]
+pub struct Tally {
+    /// Cases within tolerance.
+    pub passed: u32,
+    /// Cases outside tolerance (or refused).
+    pub failed: u32,
+    /// Cases whose f32 result equals the host's bit for bit.
+    pub bit_identical: u32,
+}
+
+impl Tally {
+    /// Records one result; prints failures.
+    pub fn record(&mut self, name: &str, index: usize, case: &Case, got: Option<f32>) {
+        match got {
+            Some(value) if (f64::from(value) - case.expected).abs() <= case.tolerance => {
+                self.passed += 1;
+                if value.to_bits() == case.host_bits {
+                    self.bit_identical += 1;
+                }
+            }
+            _ => {
+                self.failed += 1;
+                crate::say(format_args!(
+                    "FAIL {name}[{index}]: got {got:?}, expected {} ± {}",
+                    case.expected, case.tolerance
+                ));
+            }
+        }
+    }
+
+    /// Counts a scenario check that has no numeric reference.
+    pub fn check(&mut self, name: &str, ok: bool) {
+        if ok {
+            self.passed += 1;
+        } else {
+            self.failed += 1;
+            crate::say(format_args!("FAIL {name}"));
+        }
+    }
+}
+
+fn geometry(case: &Case) -> Option<RideGeometry> {
+    let suspension = if case.chain {
+        Suspension::Chain
+    } else {
+        Suspension::Rod
+    };
+    RideGeometry::new(
+        case.hub_offset_m,
+        case.length_m,
+        suspension,
+        Gravity::STANDARD,
+    )
+    .ok()
+}
+
+/// Runs the steady-state and swing-mode vectors.
+pub fn steady_state(tally: &mut Tally) {
+    for (i, case) in crate::vectors::SPEED_FOR_ANGLE.iter().enumerate() {
+        let got = geometry(case).and_then(|g| g.speed_for_angle(Angle::from_rad(case.input)).ok());
+        tally.record("speed_for_angle", i, case, got.map(AngularSpeed::rad_per_s));
+    }
+    for (i, case) in crate::vectors::ANGLE_FOR_SPEED.iter().enumerate() {
+        let got = geometry(case).and_then(|g| {
+            g.angle_for_speed(AngularSpeed::from_rad_per_s(case.input))
+                .ok()
+        });
+        tally.record("angle_for_speed", i, case, got.map(Angle::rad));
+    }
+    for (i, case) in crate::vectors::SWING_MODE.iter().enumerate() {
+        let got = geometry(case).and_then(|g| {
+            let state = g.steady_state_at_angle(Angle::from_rad(case.input)).ok()?;
+            Some(match g.swing_modes(&state) {
+                SwingModes::Rod { radial } => radial.angular_frequency_rad_s(),
+                SwingModes::Chain { fast, .. } => fast.angular_frequency_rad_s(),
+            })
+        });
+        tally.record("swing_mode", i, case, got);
+    }
+}
