@@ -79,7 +79,7 @@ pub fn length_from_steady_angle(
         libm::fabsf(speed.rad_per_s()),
         crate::steady::MAX_SHAFT_SPEED_RAD_S,
     )?;
-    let (s, c) = libm::sincosf(phi);
+    let (s, c) = crate::math::sin_cos(phi);
     let length = (gravity.mps2() * s / (c * w * w) - r0) / s;
     check_positive("length_m", length, RideGeometry::MAX_LENGTH_M)
 }

@@ -71,7 +71,7 @@ impl Gravity {
         let lat = check_range("latitude_deg", latitude_deg, -90.0, 90.0)?.to_radians();
         let h = check_range("height_m", height_m, Self::MIN_HEIGHT_M, Self::MAX_HEIGHT_M)?;
         let s2 = libm::sinf(lat) * libm::sinf(lat);
-        let gamma = GAMMA_EQUATOR * (1.0 + K * s2) / libm::sqrtf(1.0 - E2 * s2);
+        let gamma = GAMMA_EQUATOR * (1.0 + K * s2) / crate::math::sqrt(1.0 - E2 * s2);
         let correction = 1.0 - (2.0 / A) * (1.0 + F + M - 2.0 * F * s2) * h + 3.0 * h * h / (A * A);
         Ok(Self {
             mps2: gamma * correction,

@@ -5,6 +5,7 @@ pub mod commissioning;
 pub mod error;
 pub mod geometry;
 pub mod gravity;
+pub mod math;
 pub mod modes;
 pub mod steady;
 pub mod units;

@@ -90,7 +90,7 @@ impl RideGeometry {
     /// ```
     #[must_use]
     pub fn swing_modes(&self, state: &SteadyState) -> SwingModes {
-        let (s, c) = libm::sincosf(state.angle.rad());
+        let (s, c) = crate::math::sin_cos(state.angle.rad());
         let w = state.speed.rad_per_s();
         let w2 = w * w;
         let l = self.length_m();
@@ -110,7 +110,7 @@ impl RideGeometry {
             Suspension::Chain => {
                 let b = k_radial + k_tangential + 4.0 * w2 * c * c;
                 let product = k_radial * k_tangential;
-                let root = libm::sqrtf((b * b - 4.0 * product).max(0.0));
+                let root = crate::math::sqrt((b * b - 4.0 * product).max(0.0));
                 let fast = 0.5 * (b + root);
                 // Vieta for the small root: no cancellation.
                 let slow = if fast > 0.0 { product / fast } else { 0.0 };
@@ -125,7 +125,7 @@ impl RideGeometry {
 
 fn mode(omega_squared: f32) -> SwingMode {
     SwingMode {
-        angular_frequency_rad_s: libm::sqrtf(omega_squared.max(0.0)),
+        angular_frequency_rad_s: crate::math::sqrt(omega_squared.max(0.0)),
     }
 }
 

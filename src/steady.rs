@@ -108,7 +108,7 @@ impl RideGeometry {
     /// ```
     pub fn speed_for_angle(&self, angle: Angle) -> Result<AngularSpeed, ParamError> {
         let phi = checked_angle("angle", angle)?;
-        Ok(AngularSpeed::from_rad_per_s(libm::sqrtf(
+        Ok(AngularSpeed::from_rad_per_s(crate::math::sqrt(
             self.speed_squared_at(phi),
         )))
     }
@@ -163,7 +163,7 @@ impl RideGeometry {
 
     /// ω² at angle φ (φ checked to lie in [0, π/2)).
     fn speed_squared_at(&self, phi: f32) -> f32 {
-        let (s, c) = libm::sincosf(phi);
+        let (s, c) = crate::math::sin_cos(phi);
         let g = self.gravity().mps2();
         let r0 = self.hub_offset_m();
         let l = self.length_m();
@@ -190,7 +190,7 @@ impl RideGeometry {
             return (0.0, 0);
         }
         let residual = |phi: f32| {
-            let (s, c) = libm::sincosf(phi);
+            let (s, c) = crate::math::sin_cos(phi);
             (w2 * (r0 + l * s) * c - g * s, s, c)
         };
         // The residual is a difference of two terms of size g sin φ; below a
@@ -198,7 +198,7 @@ impl RideGeometry {
         let noise = |s: f32| 4.0 * f32::EPSILON * g * s;
         // φ ↦ atan(ω²(r0 + L sin φ)/g) is increasing and has the root as its
         // fixed point, so one step from a bound gives a tighter bound.
-        let step = |phi: f32| libm::atanf(w2 * (r0 + l * libm::sinf(phi)) / g);
+        let step = |phi: f32| libm::atanf(w2 * (r0 + l * crate::math::sin_cos(phi).0) / g);
         let mut lo = step(0.0);
         let mut hi = step(core::f32::consts::FRAC_PI_2).max(lo);
         lo = step(lo).min(hi);
@@ -244,11 +244,11 @@ impl RideGeometry {
     }
 
     fn state(&self, phi: f32, w2: f32) -> SteadyState {
-        let (s, c) = libm::sincosf(phi);
+        let (s, c) = crate::math::sin_cos(phi);
         let g = self.gravity().mps2();
         let r0 = self.hub_offset_m();
         let l = self.length_m();
-        let w = libm::sqrtf(w2);
+        let w = crate::math::sqrt(w2);
         // dφ/dω = 2ω (r0 + L s)² c² / (g (r0 + L s³)), from differentiating
         // ω² = g tan φ / (r0 + L sin φ) (docs/physics.md).
         let denominator = g * (r0 + l * s * s * s);

@@ -10,7 +10,12 @@
 //! This test fails when firmware/src/vectors.rs is out of date; regenerate with
 //! `UPDATE_TARGET_VECTORS=1 cargo test --features std --test target_vectors`.
 #![cfg(feature = "std")]
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 use std::fmt::Write as _;
 use std::path::Path;
@@ -33,7 +38,11 @@ fn generate() -> String {
             for deg in ANGLES_DEG {
                 index += 1;
                 let chain = index % 2 == 0;
-                let suspension = if chain { Suspension::Chain } else { Suspension::Rod };
+                let suspension = if chain {
+                    Suspension::Chain
+                } else {
+                    Suspension::Rod
+                };
                 let geometry = RideGeometry::new(r0, l, suspension, Gravity::STANDARD).unwrap();
                 let reference = Ride {
                     hub_offset_m: f64::from(r0),
@@ -55,7 +64,10 @@ fn generate() -> String {
                 .unwrap();
                 // Angle for speed: 16 ε (φ + ω |dφ/dω|).
                 let w = exact as f32;
-                let host = geometry.angle_for_speed(AngularSpeed::from_rad_per_s(w)).unwrap().rad();
+                let host = geometry
+                    .angle_for_speed(AngularSpeed::from_rad_per_s(w))
+                    .unwrap()
+                    .rad();
                 let phi = reference.angle_for_speed(f64::from(w));
                 let scale = phi + f64::from(w) * reference.sensitivity(phi).abs();
                 writeln!(

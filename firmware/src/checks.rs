@@ -29,6 +29,8 @@ pub struct Tally {
     pub passed: u32,
     /// Cases outside tolerance (or refused).
     pub failed: u32,
+    /// Numeric cases compared with the host's f32 result.
+    pub compared: u32,
     /// Cases whose f32 result equals the host's bit for bit.
     pub bit_identical: u32,
 }
@@ -36,6 +38,7 @@ pub struct Tally {
 impl Tally {
     /// Records one result; prints failures.
     pub fn record(&mut self, name: &str, index: usize, case: &Case, got: Option<f32>) {
+        self.compared += 1;
         match got {
             Some(value) if (f64::from(value) - case.expected).abs() <= case.tolerance => {
                 self.passed += 1;
@@ -102,4 +105,34 @@ pub fn steady_state(tally: &mut Tally) {
         });
         tally.record("swing_mode", i, case, got);
     }
+}
+
+/// The f32 kernels on the target: the square root (hardware `vsqrt.f32` on the
+/// M4F) must equal libm's correctly rounded `sqrtf` bit for bit; sine and
+/// cosine (≤ 2 ulp + 6e-8 from the exact value) must stay within 3 ulp + 6e-8
+/// of libm's `sincosf` (≤ 1 ulp).
+pub fn kernels(tally: &mut Tally) {
+    let mut sqrt_ok = true;
+    let mut trig_ok = true;
+    let mut bits: u32 = 0x3a00_0000; // from about 5e-4 upwards through the ride's ranges
+    for _ in 0..4000 {
+        let x = f32::from_bits(bits);
+        sqrt_ok &= swingdrive::math::sqrt(x).to_bits() == libm::sqrtf(x).to_bits();
+        let y = x * 1e-2; // 5e-6 … 60 rad
+        let (s, c) = swingdrive::math::sin_cos(y);
+        let (ls, lc) = libm::sincosf(y);
+        trig_ok &= close(s, ls) && close(c, lc);
+        bits += 0x0000_9000;
+    }
+    for x in [0.0_f32, 1.0, 2.0, 9.806_65, f32::MAX, f32::MIN_POSITIVE] {
+        sqrt_ok &= swingdrive::math::sqrt(x).to_bits() == libm::sqrtf(x).to_bits();
+    }
+    sqrt_ok &= swingdrive::math::sqrt(-1.0).is_nan();
+    tally.check("sqrt bit-identical to libm::sqrtf", sqrt_ok);
+    tally.check("sin_cos within 3 ulp + 6e-8 of libm::sincosf", trig_ok);
+}
+
+fn close(a: f32, b: f32) -> bool {
+    let ulp = f32::from_bits(libm::fabsf(b).to_bits() + 1) - libm::fabsf(b);
+    libm::fabsf(a - b) <= 3.0 * ulp + 6e-8
 }
