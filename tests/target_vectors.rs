@@ -37,7 +37,7 @@ fn generate() -> String {
         for l in LENGTHS_M {
             for deg in ANGLES_DEG {
                 index += 1;
-                let chain = index % 2 == 0;
+                let chain = index.is_multiple_of(2);
                 let suspension = if chain {
                     Suspension::Chain
                 } else {
