@@ -7,6 +7,7 @@ pub mod geometry;
 pub mod gravity;
 pub mod math;
 pub mod modes;
+pub mod seat_model;
 pub mod steady;
 pub mod units;
 
