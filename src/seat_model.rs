@@ -163,11 +163,9 @@ impl SeatModel {
     /// not finite: the caller decides the safe reaction.
     #[must_use]
     pub fn step(&self, state: &SeatState, w: f32, alpha: f32, dt: f32) -> Option<SeatState> {
-        if !(dt > 0.0 && dt <= MAX_STEP_S)
-            || !w.is_finite()
-            || !alpha.is_finite()
-            || !state.is_finite()
-        {
+        let inputs_ok =
+            dt > 0.0 && dt <= MAX_STEP_S && w.is_finite() && alpha.is_finite() && state.is_finite();
+        if !inputs_ok {
             return None;
         }
         let half = 0.5 * dt;
