@@ -18,5 +18,6 @@ pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
 pub use modes::{SwingMode, SwingModes};
+pub use seat_model::{SeatModel, SeatState};
 pub use steady::{Sensitivity, SteadyState};
 pub use units::{Angle, AngularSpeed, DriveReference, DriveScale, GearRatio};

@@ -19,6 +19,8 @@ fn public_types_implement_defmt_format() {
     loggable::<Gravity>();
     loggable::<ParamError>();
     loggable::<RideGeometry>();
+    loggable::<SeatModel>();
+    loggable::<SeatState>();
     loggable::<Sensitivity>();
     loggable::<SteadyState>();
     loggable::<Suspension>();
