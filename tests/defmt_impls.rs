@@ -4,7 +4,7 @@
 
 use swingdrive::{
     Angle, AngularSpeed, DriveReference, DriveScale, GearRatio, Gravity, ParamError, RideGeometry,
-    Sensitivity, SteadyState, Suspension, SwingMode, SwingModes,
+    SeatModel, SeatState, Sensitivity, SteadyState, Suspension, SwingMode, SwingModes,
 };
 
 fn loggable<T: defmt::Format>() {}
