@@ -41,7 +41,7 @@ proptest! {
                 prop_assert!(w.rad_per_s().is_finite() && w.rad_per_s() >= 0.0);
             }
             if let Ok(s) = ride.steady_state_at_speed(AngularSpeed::from_rad_per_s(x)) {
-                prop_assert!(s.angle.rad().is_finite() && s.angle.rad() >= 0.0 && s.angle.rad() < 1.5708);
+                prop_assert!(s.angle.rad().is_finite() && s.angle.rad() >= 0.0 && s.angle.rad() < core::f32::consts::FRAC_PI_2);
                 prop_assert!(s.load_factor.is_finite() && s.load_factor >= 1.0);
                 let modes = ride.swing_modes(&s);
                 prop_assert!(!modes.slowest().angular_frequency_rad_s().is_nan());
