@@ -450,7 +450,7 @@ pub fn simulate<O: Observer + ?Sized>(
     let mut speed = start_speed_rad_s;
     let mut coasting: Option<(f64, f64)> = None;
     let mut t = t_start;
-    let mut next_h = 0.0;
+    let mut next_h: f64 = 0.0;
     let mut upcoming = breakpoints.into_iter().peekable();
     let mut extra_breakpoint: Option<f64> = None;
     loop {
@@ -549,7 +549,8 @@ pub fn simulate<O: Observer + ?Sized>(
         let mut method = ExplicitRungeKutta::dopri5()
             .rtol(rtol)
             .atol(atol)
-            .h0(next_h)
+            // The solver refuses a first step longer than the interval.
+            .h0(next_h.min(next - t))
             .max_steps(MAX_STEPS_PER_INTERVAL);
         let mut monitor = Monitor {
             model,

@@ -30,7 +30,8 @@ pub use dynamics::{LinkForce, SeatModel, SeatState, ShaftMotion, SpeedStepRespon
 pub use engine::{simulate, Observation, Observer, SimError, SimOptions, SimStats, Tolerance};
 pub use profile::{ProfileError, ProfileSample, SpeedProfile};
 pub use replay::{
-    replay, ReplayOptions, ReplayOutcome, ReplaySummary, SlackEvent, StartCondition, TraceSample,
+    replay, ReplayOptions, ReplayOutcome, ReplaySummary, SlackEvent, SlackKind, StartCondition,
+    TraceSample,
 };
 
 use crate::error::ParamError;

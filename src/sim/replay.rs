@@ -38,7 +38,7 @@ pub const IMPULSE_NOISE_MPS: f64 = 1.0e-9;
 pub const MAX_LISTED_SLACK_EVENTS: usize = 100;
 
 /// How the seat starts.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub enum StartCondition {
     /// The ride at standstill, the seat hanging straight down at rest. A
     /// non-zero first speed is then a speed step at the first sample.
@@ -46,6 +46,9 @@ pub enum StartCondition {
     Hanging,
     /// The seat in steady rotation at the first sample's speed.
     Steady,
+    /// The seat in the given state (turning frame), the top turning at the
+    /// first sample's speed.
+    Given(SeatState),
 }
 
 /// Options of a replay.
@@ -391,6 +394,7 @@ pub fn replay(
             let w = profile.first_speed_rad_s();
             (model.steady_state(w), w)
         }
+        StartCondition::Given(state) => (state, profile.first_speed_rad_s()),
     };
     let window_start_s = options
         .permit_drop_s
