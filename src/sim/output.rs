@@ -74,18 +74,15 @@ fn thin(points: impl ExactSizeIterator<Item = (f64, f64)>) -> Vec<(f64, f64)> {
     out
 }
 
-/// Range of values with a margin, never empty.
+/// Range of values including zero, with a margin, never empty.
 fn value_range(curves: &[&[(f64, f64)]]) -> (f64, f64) {
     let (lo, hi) = curves
         .iter()
         .flat_map(|c| c.iter())
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &(_, v)| {
+        .fold((0.0_f64, 0.0_f64), |(lo, hi), &(_, v)| {
             (lo.min(v), hi.max(v))
         });
-    if !(lo.is_finite() && hi.is_finite()) {
-        return (-1.0, 1.0);
-    }
-    let margin = 0.05 * (hi - lo).max(1e-3);
+    let margin = 0.05 * (hi - lo).max(1.0);
     (lo - margin, hi + margin)
 }
 
@@ -135,6 +132,7 @@ pub fn render_svg(trace: &[TraceSample], title: &str) -> Result<String, PlotErro
             .legend(|(x, y)| PathElement::new([(x, y), (x + 20, y)], BLUE));
         chart
             .configure_series_labels()
+            .position(SeriesLabelPosition::LowerRight)
             .border_style(BLACK)
             .background_style(WHITE.mix(0.8))
             .draw()
@@ -170,6 +168,7 @@ pub fn render_svg(trace: &[TraceSample], title: &str) -> Result<String, PlotErro
         }
         chart
             .configure_series_labels()
+            .position(SeriesLabelPosition::LowerRight)
             .border_style(BLACK)
             .background_style(WHITE.mix(0.8))
             .draw()
