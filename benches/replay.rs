@@ -12,12 +12,12 @@ use std::time::Duration;
 
 use criterion::{criterion_group, criterion_main, Criterion};
 use swingdrive::sim::output::write_trace_csv;
-use swingdrive::sim::{replay, ReplayOptions, SeatModel, SpeedProfile};
+use swingdrive::sim::{replay, ReplayOptions, SeatDynamics, SpeedProfile};
 use swingdrive::Suspension;
 
 /// Demo data (invented ride): r0 = 3.6 m, L = 6.2 m, chain.
-fn seat() -> SeatModel {
-    SeatModel::new(3.6, 6.2, Suspension::Chain, 9.80665).unwrap()
+fn seat() -> SeatDynamics {
+    SeatDynamics::new(3.6, 6.2, Suspension::Chain, 9.80665).unwrap()
 }
 
 /// Two minutes: a 40 s smooth ramp to 1.2 rad/s sampled every 0.1 s, a

@@ -32,7 +32,7 @@ use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
 use crate::gravity::{Gravity, STANDARD_GRAVITY_MPS2};
 use crate::sim::profile::ProfileStats;
-use crate::sim::{DriveModel, SeatModel};
+use crate::sim::{DriveModel, SeatDynamics};
 
 /// Largest accepted acceleration or deceleration limit, rad/s².
 pub const MAX_LIMIT_ACCEL_RAD_S2: f64 = 10.0;
@@ -46,7 +46,7 @@ pub struct RideFile {
     /// The geometry as the target sees it (f32).
     pub geometry: RideGeometry,
     /// The same seat in f64 for simulation, with the `[swing]` damping.
-    pub seat: SeatModel,
+    pub seat: SeatDynamics,
     /// The `[limits]` table.
     pub limits: RideLimits,
     /// The `[drive]` table, if given.
@@ -334,12 +334,12 @@ impl RideFile {
             RawSuspension::Rod => Suspension::Rod,
         };
         let hub_offset_m = at.value("geometry", &g.hub_offset_m, "0 to 100 m", |x| {
-            SeatModel::new(x, 1.0, suspension, gravity_mps2).map(|_| x)
+            SeatDynamics::new(x, 1.0, suspension, gravity_mps2).map(|_| x)
         })?;
         let length_m = at.value("geometry", &g.length_m, "above 0, up to 100 m", |x| {
-            SeatModel::new(0.0, x, suspension, gravity_mps2).map(|_| x)
+            SeatDynamics::new(0.0, x, suspension, gravity_mps2).map(|_| x)
         })?;
-        let mut seat = SeatModel::new(hub_offset_m, length_m, suspension, gravity_mps2)
+        let mut seat = SeatDynamics::new(hub_offset_m, length_m, suspension, gravity_mps2)
             .map_err(|e| at.error(None, Some("geometry"), e.to_string()))?;
         #[allow(clippy::cast_possible_truncation)]
         let geometry = RideGeometry::new(

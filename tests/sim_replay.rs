@@ -8,16 +8,16 @@
 )]
 
 use swingdrive::sim::{
-    replay, simulate, DriveModel, Observation, ReplayOptions, SeatModel, SeatState, SimError,
+    replay, simulate, DriveModel, LinkState, Observation, ReplayOptions, SeatDynamics, SimError,
     SimOptions, SlackKind, SpeedProfile, StartCondition,
 };
 use swingdrive::{ParamError, Suspension};
 
 const G: f64 = 9.806_65;
 
-fn seat(suspension: Suspension) -> SeatModel {
+fn seat(suspension: Suspension) -> SeatDynamics {
     // Demo data (invented ride): r0 = 3.4 m, L = 5.8 m.
-    SeatModel::new(3.4, 5.8, suspension, G).unwrap()
+    SeatDynamics::new(3.4, 5.8, suspension, G).unwrap()
 }
 
 fn options(settle_s: f64) -> ReplayOptions {
@@ -42,7 +42,7 @@ fn a_step_from_standstill_passes_no_impulse_through_a_hanging_chain() {
     simulate(
         &model,
         &profile,
-        SeatState::HANGING,
+        LinkState::HANGING,
         0.0,
         10.0,
         &sim,
@@ -61,7 +61,7 @@ fn a_step_from_standstill_passes_no_impulse_through_a_hanging_chain() {
     simulate(
         &rod,
         &profile,
-        SeatState::HANGING,
+        LinkState::HANGING,
         0.0,
         10.0,
         &sim,
@@ -109,7 +109,7 @@ fn a_seat_released_above_the_pivot_plane_is_slack_until_it_has_fallen_far_enough
     let theta0 = 100.0_f64.to_radians();
     let profile = SpeedProfile::new(&[(0.0, 0.0), (5.0, 0.0)]).unwrap();
     let opts = ReplayOptions {
-        start: StartCondition::Given(SeatState::swung_out(theta0)),
+        start: StartCondition::Given(LinkState::swung_out(theta0)),
         settle_s: 0.0,
         output_step_s: 1e-3,
         ..ReplayOptions::default()
@@ -148,7 +148,7 @@ fn residual_swing_catches_circling_that_the_angle_from_vertical_hides() {
     // exact solution), so a peak-to-peak of it shows nothing, while relative
     // to the top the seat drifts round the axis. The residual swing sees the
     // seat reach the far side of the cone, φ + φ' from the steady direction.
-    let model = SeatModel::new(0.0, 5.0, Suspension::Chain, G).unwrap();
+    let model = SeatDynamics::new(0.0, 5.0, Suspension::Chain, G).unwrap();
     let w = 2.0;
     let phi = model.steady_angle_rad(w);
     let cone = phi + 5.0_f64.to_radians();
@@ -159,7 +159,7 @@ fn residual_swing_catches_circling_that_the_angle_from_vertical_hides() {
     let spin = [-n[2] * v_rel[1] / 5.0, 0.0, n[0] * v_rel[1] / 5.0];
     let profile = SpeedProfile::new(&[(0.0, w)]).unwrap();
     let opts = ReplayOptions {
-        start: StartCondition::Given(SeatState::new(n, spin).unwrap()),
+        start: StartCondition::Given(LinkState::new(n, spin).unwrap()),
         settle_s: 60.0,
         ..ReplayOptions::default()
     };
@@ -309,7 +309,7 @@ fn the_top_coasts_to_a_stop_when_the_permit_drops() {
         simulate(
             &seat(Suspension::Chain),
             &profile,
-            SeatState::HANGING,
+            LinkState::HANGING,
             0.0,
             10.0,
             &coasting,

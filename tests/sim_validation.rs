@@ -12,14 +12,14 @@ use core::f64::consts::TAU;
 
 use swingdrive::reference::seat::simulate_ground_frame;
 use swingdrive::sim::{
-    simulate, Observation, SeatModel, SeatState, SimOptions, SpeedProfile, Tolerance,
+    simulate, LinkState, Observation, SeatDynamics, SimOptions, SpeedProfile, Tolerance,
 };
 use swingdrive::{AngularSpeed, Gravity, RideGeometry, Suspension, SwingModes};
 
 const G: f64 = 9.806_65;
 
-fn seat(r0: f64, l: f64, suspension: Suspension) -> SeatModel {
-    SeatModel::new(r0, l, suspension, G).unwrap()
+fn seat(r0: f64, l: f64, suspension: Suspension) -> SeatDynamics {
+    SeatDynamics::new(r0, l, suspension, G).unwrap()
 }
 
 fn constant(speed: f64, until: f64) -> SpeedProfile {
@@ -27,9 +27,9 @@ fn constant(speed: f64, until: f64) -> SpeedProfile {
 }
 
 fn run(
-    model: &SeatModel,
+    model: &SeatDynamics,
     profile: &SpeedProfile,
-    start: SeatState,
+    start: LinkState,
     start_speed: f64,
     end_s: f64,
     options: &SimOptions,
@@ -68,7 +68,7 @@ fn damped_seats_settle_at_the_closed_form_steady_state() {
         for (r0, l, w) in [(3.4, 5.8, 1.15), (0.0, 4.0, 2.0), (6.0, 3.0, 0.9)] {
             let model = seat(r0, l, suspension).with_damping(1.0).unwrap();
             let profile = SpeedProfile::new(&[(0.0, 0.0), (20.0, w), (200.0, w)]).unwrap();
-            let start = SeatState::swung_out(0.01);
+            let start = LinkState::swung_out(0.01);
             let samples = run(&model, &profile, start, 0.0, 200.0, &with_step(0.5));
             let last = samples.last().unwrap();
             let phi = last.state.angle_from_vertical_rad();
@@ -220,7 +220,7 @@ const MIXED_KICK: [f64; 3] = [1e-5, 1.3e-5, 0.7e-5];
 
 /// `kick` is the starting angular velocity of the link, rad/s.
 fn small_swing(
-    model: &SeatModel,
+    model: &SeatDynamics,
     deg: f64,
     kick: [f64; 3],
     periods_of: f64,
@@ -228,7 +228,7 @@ fn small_swing(
 ) -> (f64, Vec<Observation>) {
     let phi = deg.to_radians();
     let w = model.steady_reference().speed_for_angle(phi);
-    let start = SeatState::new(SeatState::swung_out(phi).direction(), kick).unwrap();
+    let start = LinkState::new(LinkState::swung_out(phi).direction(), kick).unwrap();
     let end = 25.0 * TAU / periods_of;
     let options = SimOptions {
         sample_step_s: h,
@@ -241,7 +241,7 @@ fn small_swing(
     (w, run(model, &constant(w, end), start, w, end, &options))
 }
 
-fn f32_modes(model: &SeatModel, w: f64) -> SwingModes {
+fn f32_modes(model: &SeatDynamics, w: f64) -> SwingModes {
     #[allow(clippy::cast_possible_truncation)]
     let geometry = RideGeometry::new(
         model.hub_offset_m() as f32,
@@ -415,7 +415,7 @@ fn jacobi_integral_is_conserved_at_constant_speed() {
         let samples = run(
             &model,
             &profile,
-            SeatState::HANGING,
+            LinkState::HANGING,
             0.0,
             300.0,
             &with_step(0.05),
@@ -451,7 +451,7 @@ fn ground_frame_formulation_agrees_over_a_ramp_and_hold() {
         let samples = run(
             &model,
             &profile,
-            SeatState::HANGING,
+            LinkState::HANGING,
             0.0,
             60.0,
             &with_step(0.5),

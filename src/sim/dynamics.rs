@@ -44,7 +44,7 @@ pub const MAX_DAMPING_PER_S: f64 = 10.0;
 
 /// One seat: ride geometry in f64, suspension and optional linear damping.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SeatModel {
+pub struct SeatDynamics {
     hub_offset_m: f64,
     length_m: f64,
     gravity_mps2: f64,
@@ -64,7 +64,7 @@ pub struct ShaftMotion {
 /// Position and velocity of the seat: link direction and link angular
 /// velocity, both in the turning frame.
 #[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SeatState {
+pub struct LinkState {
     direction: Vec3,
     angular_velocity: Vec3,
 }
@@ -89,7 +89,7 @@ pub struct LinkForce {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SpeedStepResponse {
     /// The state just after the step.
-    pub state: SeatState,
+    pub state: LinkState,
     /// Impulse per unit mass passed along the link, m/s, positive when the
     /// link pulls; a negative value would need a chain to push (slack).
     pub tension_impulse_mps: f64,
@@ -106,14 +106,14 @@ pub struct SeatRate {
     pub angular_velocity: Vec3,
 }
 
-impl SeatModel {
+impl SeatDynamics {
     /// A seat on a ride with the given geometry (f64 throughout).
     ///
     /// * `hub_offset_m`: shaft axis to pivot, m, in [0, 100].
     /// * `length_m`: pivot to centre of mass, m, in (0, 100].
     /// * `gravity_mps2`: in [9.7, 9.9] m/s² (see [`Gravity`]).
     ///
-    /// Damping starts at zero; see [`SeatModel::with_damping`].
+    /// Damping starts at zero; see [`SeatDynamics::with_damping`].
     ///
     /// # Errors
     /// [`ParamError`] naming `hub_offset_m`, `length_m` or `gravity_mps2`.
@@ -226,14 +226,14 @@ impl SeatModel {
     /// The seat at rest relative to the top in steady rotation at
     /// `speed_rad_s`: swung out radially by the steady angle.
     #[must_use]
-    pub fn steady_state(&self, speed_rad_s: f64) -> SeatState {
-        SeatState::swung_out(self.steady_angle_rad(speed_rad_s))
+    pub fn steady_state(&self, speed_rad_s: f64) -> LinkState {
+        LinkState::swung_out(self.steady_angle_rad(speed_rad_s))
     }
 
     /// Position of the seat relative to the shaft axis at the pivot's
     /// height, m (turning frame).
     #[must_use]
-    pub fn seat_position_m(&self, state: &SeatState) -> Vec3 {
+    pub fn seat_position_m(&self, state: &LinkState) -> Vec3 {
         let [nx, ny, nz] = state.direction;
         let l = self.length_m;
         [self.hub_offset_m + l * nx, l * ny, l * nz]
@@ -241,7 +241,7 @@ impl SeatModel {
 
     /// Velocity of the seat relative to the top, m/s (turning frame).
     #[must_use]
-    pub fn seat_velocity_mps(&self, state: &SeatState) -> Vec3 {
+    pub fn seat_velocity_mps(&self, state: &LinkState) -> Vec3 {
         scale(
             cross(state.angular_velocity, state.direction),
             self.length_m,
@@ -252,7 +252,7 @@ impl SeatModel {
     /// m/s²: gravity, centrifugal, Coriolis, Euler and damping terms; every
     /// force except the link's.
     #[must_use]
-    pub fn applied_acceleration(&self, state: &SeatState, shaft: ShaftMotion) -> Vec3 {
+    pub fn applied_acceleration(&self, state: &LinkState, shaft: ShaftMotion) -> Vec3 {
         let [x, y, _] = self.seat_position_m(state);
         let [vx, vy, vz] = self.seat_velocity_mps(state);
         let w = shaft.speed_rad_s;
@@ -268,7 +268,7 @@ impl SeatModel {
 
     /// Time derivatives of the state.
     #[must_use]
-    pub fn rate(&self, state: &SeatState, shaft: ShaftMotion) -> SeatRate {
+    pub fn rate(&self, state: &LinkState, shaft: ShaftMotion) -> SeatRate {
         let f = self.applied_acceleration(state, shaft);
         let n = state.direction;
         let torque = scale(cross(n, f), 1.0 / self.length_m);
@@ -285,7 +285,7 @@ impl SeatModel {
 
     /// Force of the link (and hinge) on the seat.
     #[must_use]
-    pub fn link_force(&self, state: &SeatState, shaft: ShaftMotion) -> LinkForce {
+    pub fn link_force(&self, state: &LinkState, shaft: ShaftMotion) -> LinkForce {
         let f = self.applied_acceleration(state, shaft);
         let rate = self.rate(state, shaft);
         let n = state.direction;
@@ -310,7 +310,7 @@ impl SeatModel {
     /// the constant speed `speed_rad_s`, `½|v_rel|² + g z − ½ ω² (x² + y²)`.
     /// Conserved when the speed is constant and there is no damping.
     #[must_use]
-    pub fn jacobi_integral(&self, state: &SeatState, speed_rad_s: f64) -> f64 {
+    pub fn jacobi_integral(&self, state: &LinkState, speed_rad_s: f64) -> f64 {
         let [x, y, z] = self.seat_position_m(state);
         let v = self.seat_velocity_mps(state);
         0.5 * dot(v, v) + self.gravity_mps2 * z - 0.5 * speed_rad_s * speed_rad_s * (x * x + y * y)
@@ -325,7 +325,7 @@ impl SeatModel {
     /// hinge also passes the tangential part: only the component about the
     /// hinge axis stays. The seat's position does not change.
     #[must_use]
-    pub fn speed_step(&self, state: &SeatState, delta_rad_s: f64) -> SpeedStepResponse {
+    pub fn speed_step(&self, state: &LinkState, delta_rad_s: f64) -> SpeedStepResponse {
         let [x, y, _] = self.seat_position_m(state);
         let free_jump = [delta_rad_s * y, -delta_rad_s * x, 0.0];
         let n = state.direction;
@@ -334,7 +334,7 @@ impl SeatModel {
             Suspension::Chain => spin,
             Suspension::Rod => [0.0, spin[1], 0.0],
         };
-        let after = SeatState {
+        let after = LinkState {
             direction: n,
             angular_velocity: add(state.angular_velocity, spin),
         };
@@ -353,7 +353,7 @@ impl SeatModel {
     }
 }
 
-impl SeatState {
+impl LinkState {
     /// Hanging straight down, at rest relative to the top.
     pub const HANGING: Self = Self {
         direction: [0.0, 0.0, -1.0],
@@ -514,8 +514,8 @@ pub fn norm(a: Vec3) -> f64 {
 mod tests {
     use super::*;
 
-    fn chain() -> SeatModel {
-        SeatModel::new(3.0, 5.0, Suspension::Chain, 9.80665).unwrap()
+    fn chain() -> SeatDynamics {
+        SeatDynamics::new(3.0, 5.0, Suspension::Chain, 9.80665).unwrap()
     }
 
     #[test]
@@ -523,7 +523,7 @@ mod tests {
         // Hand calculation, common practice: at the steady angle the relative
         // acceleration vanishes and the tension is g / cos φ.
         for suspension in [Suspension::Chain, Suspension::Rod] {
-            let seat = SeatModel::new(3.0, 5.0, suspension, 9.80665).unwrap();
+            let seat = SeatDynamics::new(3.0, 5.0, suspension, 9.80665).unwrap();
             let w = 1.1;
             let state = seat.steady_state(w);
             let shaft = ShaftMotion {
@@ -546,7 +546,7 @@ mod tests {
         // itself, so with the chain vertical a speed step leaves the seat at
         // rest in the ground frame: relative velocity −Δω ẑ × x = (0, −Δω r0, 0).
         let seat = chain();
-        let step = seat.speed_step(&SeatState::HANGING, 0.8);
+        let step = seat.speed_step(&LinkState::HANGING, 0.8);
         assert_eq!(step.tension_impulse_mps, 0.0);
         let v = seat.seat_velocity_mps(&step.state);
         assert!((v[1] + 0.8 * 3.0).abs() < 1e-12 && v[0].abs() < 1e-12 && v[2].abs() < 1e-12);
@@ -556,7 +556,7 @@ mod tests {
     fn a_leading_chain_would_need_to_push_on_a_speed_up_step() {
         // Hand calculation, common practice: tension impulse = −Δω r0 n_y.
         let seat = chain();
-        let ahead = SeatState::new([0.0, 0.3, -1.0], [0.0; 3]).unwrap();
+        let ahead = LinkState::new([0.0, 0.3, -1.0], [0.0; 3]).unwrap();
         let step = seat.speed_step(&ahead, 0.5);
         let ny = ahead.direction()[1];
         assert!((step.tension_impulse_mps - (-0.5 * 3.0 * ny)).abs() < 1e-12);
@@ -566,8 +566,8 @@ mod tests {
 
     #[test]
     fn a_rod_hinge_passes_the_whole_tangential_jump() {
-        let seat = SeatModel::new(3.0, 5.0, Suspension::Rod, 9.80665).unwrap();
-        let state = SeatState::new([0.5, 0.0, -1.0], [0.0, -0.2, 0.0]).unwrap();
+        let seat = SeatDynamics::new(3.0, 5.0, Suspension::Rod, 9.80665).unwrap();
+        let state = LinkState::new([0.5, 0.0, -1.0], [0.0, -0.2, 0.0]).unwrap();
         let step = seat.speed_step(&state, 0.7);
         assert_eq!(step.state, state);
         assert!(step.transverse_impulse_mps > 0.0);
@@ -576,33 +576,33 @@ mod tests {
 
     #[test]
     fn angles_stay_defined_at_the_poles_of_angle_charts() {
-        let up = SeatState::new([0.0, 0.0, 1.0], [0.0; 3]).unwrap();
+        let up = LinkState::new([0.0, 0.0, 1.0], [0.0; 3]).unwrap();
         assert!((up.angle_from_vertical_rad() - core::f64::consts::PI).abs() < 1e-15);
-        let tangent = SeatState::new([0.0, 1.0, 0.0], [0.3, 0.0, 0.0]).unwrap();
+        let tangent = LinkState::new([0.0, 1.0, 0.0], [0.3, 0.0, 0.0]).unwrap();
         assert!((tangent.tangential_angle_rad() - core::f64::consts::FRAC_PI_2).abs() < 1e-15);
         let rate = chain().rate(&tangent, ShaftMotion::default());
         assert!(rate.direction.iter().all(|v| v.is_finite()));
-        assert!(SeatState::new([0.0; 3], [0.0; 3]).is_none());
-        assert!(SeatState::new([1.0, 0.0, 0.0], [f64::NAN, 0.0, 0.0]).is_none());
+        assert!(LinkState::new([0.0; 3], [0.0; 3]).is_none());
+        assert!(LinkState::new([1.0, 0.0, 0.0], [f64::NAN, 0.0, 0.0]).is_none());
     }
 
     #[test]
     fn bad_parameters_are_refused_by_name() {
         let c = Suspension::Chain;
         assert_eq!(
-            SeatModel::new(-1.0, 5.0, c, 9.8),
+            SeatDynamics::new(-1.0, 5.0, c, 9.8),
             Err(ParamError::Negative("hub_offset_m"))
         );
         assert_eq!(
-            SeatModel::new(1.0, 0.0, c, 9.8),
+            SeatDynamics::new(1.0, 0.0, c, 9.8),
             Err(ParamError::NotPositive("length_m"))
         );
         assert_eq!(
-            SeatModel::new(1.0, 5.0, c, f64::NAN),
+            SeatDynamics::new(1.0, 5.0, c, f64::NAN),
             Err(ParamError::NonFinite("gravity_mps2"))
         );
         assert_eq!(
-            SeatModel::new(1.0, 5.0, c, 1.6),
+            SeatDynamics::new(1.0, 5.0, c, 1.6),
             Err(ParamError::OutOfRange("gravity_mps2"))
         );
         assert_eq!(

@@ -8,7 +8,7 @@
 //! each breakpoint the state is projected back onto the constraints
 //! (`|n| = 1`, `n·ω = 0`, rods in the radial plane) and a speed step, if the
 //! profile has one there, is applied as an impulse
-//! ([`SeatModel::speed_step`]).
+//! ([`SeatDynamics::speed_step`]).
 //!
 //! Between breakpoints the solver's dense output (4th order) is sampled on a
 //! fixed time grid (`sample_step_s`) and every sample is handed to an
@@ -26,7 +26,7 @@ use crate::error::ParamError;
 
 use super::check_f64;
 use super::drive::DriveModel;
-use super::dynamics::{LinkForce, SeatModel, SeatState, ShaftMotion, SpeedStepResponse};
+use super::dynamics::{LinkForce, LinkState, SeatDynamics, ShaftMotion, SpeedStepResponse};
 use super::profile::SpeedProfile;
 
 /// Integrator state: link direction (3), link angular velocity (3), shaft speed.
@@ -51,8 +51,9 @@ pub struct Tolerance {
 }
 
 impl Default for Tolerance {
-    /// 1e-9 relative, 1e-11 absolute: angles accurate to about 1e-7 rad over
-    /// a two-minute replay (measured, see `docs/simulator.md`).
+    /// 1e-9 relative, 1e-11 absolute: link directions within 4e-7 rad of a
+    /// 1e-12 run over three minutes of violent swinging, within 2e-8 rad for
+    /// smooth profiles (measured, see `docs/simulator.md`).
     fn default() -> Self {
         Self {
             relative: 1.0e-9,
@@ -93,7 +94,7 @@ pub struct Observation {
     /// Time, s.
     pub time_s: f64,
     /// The seat (projected onto the constraints).
-    pub state: SeatState,
+    pub state: LinkState,
     /// The shaft.
     pub shaft: ShaftMotion,
     /// The commanded speed, rad/s.
@@ -135,10 +136,10 @@ pub struct SimStats {
     /// Intervals integrated (breakpoint to breakpoint).
     pub intervals: usize,
     /// Largest constraint error found at a breakpoint before projection
-    /// ([`SeatState::constraint_error`]).
+    /// ([`LinkState::constraint_error`]).
     pub max_constraint_error: f64,
     /// State at the end.
-    pub final_state: SeatState,
+    pub final_state: LinkState,
     /// Shaft speed at the end, rad/s.
     pub final_speed_rad_s: f64,
 }
@@ -243,16 +244,16 @@ impl ShaftLaw {
 
 /// The equations of motion on one interval, in the solver's terms.
 struct Interval<'a> {
-    model: &'a SeatModel,
+    model: &'a SeatDynamics,
     law: ShaftLaw,
 }
 
-fn unpack(y: &Y) -> SeatState {
+fn unpack(y: &Y) -> LinkState {
     let [n0, n1, n2, w0, w1, w2, _] = *y;
-    SeatState::from_raw([n0, n1, n2], [w0, w1, w2])
+    LinkState::from_raw([n0, n1, n2], [w0, w1, w2])
 }
 
-fn pack(state: &SeatState, speed: f64) -> Y {
+fn pack(state: &LinkState, speed: f64) -> Y {
     let [n0, n1, n2] = state.direction();
     let [w0, w1, w2] = state.angular_velocity();
     [n0, n1, n2, w0, w1, w2, speed]
@@ -293,7 +294,7 @@ impl Grid {
 
 /// Samples the solver's dense output on the grid and hands it on.
 struct Monitor<'a, O: Observer + ?Sized> {
-    model: &'a SeatModel,
+    model: &'a SeatDynamics,
     law: ShaftLaw,
     grid: &'a mut Grid,
     observer: &'a mut O,
@@ -366,9 +367,9 @@ impl<O: Observer + ?Sized> Solout<f64, Y> for Monitor<'_, O> {
 /// `start_speed_rad_s` or `permit_drop_s`; [`SimError::PermitDropWithoutDrive`];
 /// [`SimError::Solver`] if the solver gives up.
 pub fn simulate<O: Observer + ?Sized>(
-    model: &SeatModel,
+    model: &SeatDynamics,
     profile: &SpeedProfile,
-    start: SeatState,
+    start: LinkState,
     start_speed_rad_s: f64,
     end_s: f64,
     options: &SimOptions,

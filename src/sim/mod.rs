@@ -26,7 +26,7 @@ pub mod profile;
 pub mod replay;
 
 pub use drive::DriveModel;
-pub use dynamics::{LinkForce, SeatModel, SeatState, ShaftMotion, SpeedStepResponse};
+pub use dynamics::{LinkForce, LinkState, SeatDynamics, ShaftMotion, SpeedStepResponse};
 pub use engine::{simulate, Observation, Observer, SimError, SimOptions, SimStats, Tolerance};
 pub use profile::{ProfileError, ProfileSample, SpeedProfile};
 pub use replay::{

@@ -21,7 +21,7 @@ use crate::geometry::Suspension;
 
 use super::check_f64;
 use super::drive::DriveModel;
-use super::dynamics::{SeatModel, SeatState, SpeedStepResponse};
+use super::dynamics::{LinkState, SeatDynamics, SpeedStepResponse};
 use super::engine::{simulate, Observation, Observer, SimError, SimOptions, Tolerance};
 use super::profile::{ProfileStats, SpeedProfile, MAX_PROFILE_DURATION_S};
 
@@ -48,7 +48,7 @@ pub enum StartCondition {
     Steady,
     /// The seat in the given state (turning frame), the top turning at the
     /// first sample's speed.
-    Given(SeatState),
+    Given(LinkState),
 }
 
 /// Options of a replay.
@@ -219,7 +219,7 @@ pub struct ReplayOutcome {
 
 /// Follows the samples and keeps the figures.
 struct Tracker<'a, 'p> {
-    model: &'a SeatModel,
+    model: &'a SeatDynamics,
     drive: Option<DriveModel>,
     record_every: u64,
     count: u64,
@@ -363,7 +363,7 @@ impl Observer for Tracker<'_, '_> {
 /// [`simulate`].
 #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
 pub fn replay(
-    model: &SeatModel,
+    model: &SeatDynamics,
     profile: &SpeedProfile,
     options: &ReplayOptions,
     progress: Option<&mut dyn FnMut(f64)>,
@@ -389,7 +389,7 @@ pub fn replay(
     let profile_end_s = profile.end_s();
     let end_s = profile_end_s + settle;
     let (start, start_speed) = match options.start {
-        StartCondition::Hanging => (SeatState::HANGING, 0.0),
+        StartCondition::Hanging => (LinkState::HANGING, 0.0),
         StartCondition::Steady => {
             let w = profile.first_speed_rad_s();
             (model.steady_state(w), w)
