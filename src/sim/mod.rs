@@ -8,7 +8,7 @@
 //! * [`profile`]: a commanded speed profile (piecewise linear), from memory or CSV.
 //! * [`engine`]: adaptive Dormand–Prince integration across the profile's
 //!   breakpoints, sampling the motion on a fixed grid for an [`Observer`].
-//! * [`replay`]: the test-bench questions answered — peak angle, residual
+//! * [`mod@replay`]: the test-bench questions answered — peak angle, residual
 //!   swing, peak load factor, chain slack — plus a time series.
 //! * [`output`]: the time series as CSV and as an SVG plot.
 //!
