@@ -1,5 +1,5 @@
 //! Replay speed: a two-minute profile with a 1 ms trace, as a test bench
-//! would run it (`cargo bench --bench replay`).
+//! would run it (`cargo bench --features std --bench replay`).
 #![allow(
     clippy::unwrap_used,
     clippy::expect_used,
@@ -20,12 +20,12 @@ fn seat() -> SeatDynamics {
     SeatDynamics::new(3.6, 6.2, Suspension::Chain, 9.80665).unwrap()
 }
 
-/// Two minutes: a 40 s smooth ramp to 1.2 rad/s sampled every 0.1 s, a
-/// hold, a 30 s ramp down, a hold; no settling window, 1 ms output.
-fn two_minute_profile() -> SpeedProfile {
+/// Two minutes: a 40 s smooth ramp to 1.2 rad/s, a hold, a 30 s ramp down,
+/// a hold, sampled every `step_ms` milliseconds (each sample a breakpoint).
+fn two_minute_profile(step_ms: u32) -> SpeedProfile {
     let mut samples = Vec::new();
-    for i in 0..=1200 {
-        let t = f64::from(i) * 0.1;
+    for i in 0..=120_000 / step_ms {
+        let t = f64::from(i * step_ms) * 1e-3;
         let smooth = |s: f64| s * s * (3.0 - 2.0 * s);
         let w = if t < 40.0 {
             1.2 * smooth(t / 40.0)
@@ -43,7 +43,8 @@ fn two_minute_profile() -> SpeedProfile {
 
 fn bench(c: &mut Criterion) {
     let seat = seat();
-    let profile = two_minute_profile();
+    let profile = two_minute_profile(100);
+    let dense = two_minute_profile(1);
     let options = ReplayOptions {
         settle_s: 0.0,
         output_step_s: 1e-3,
@@ -56,6 +57,13 @@ fn bench(c: &mut Criterion) {
         .measurement_time(Duration::from_secs(3));
     group.bench_function("two_minutes_1ms_trace", |b| {
         b.iter(|| replay(&seat, black_box(&profile), &options, None).unwrap());
+    });
+    let summary_only = ReplayOptions {
+        record_trace: false,
+        ..options
+    };
+    group.bench_function("two_minutes_1ms_samples_summary", |b| {
+        b.iter(|| replay(&seat, black_box(&dense), &summary_only, None).unwrap());
     });
     let outcome = replay(&seat, &profile, &options, None).unwrap();
     group.bench_function("two_minutes_1ms_csv", |b| {

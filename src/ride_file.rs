@@ -321,6 +321,8 @@ impl RideFile {
             )
         })?;
 
+        // Each key is checked on its own, through the constructor that owns its
+        // range, so that a refusal can point at the key's line.
         let g = &raw.geometry;
         let gravity_mps2 = match &g.gravity_mps2 {
             None => f64::from(STANDARD_GRAVITY_MPS2),
@@ -342,13 +344,11 @@ impl RideFile {
         let mut seat = SeatDynamics::new(hub_offset_m, length_m, suspension, gravity_mps2)
             .map_err(|e| at.error(None, Some("geometry"), e.to_string()))?;
         #[allow(clippy::cast_possible_truncation)]
-        let geometry = RideGeometry::new(
-            hub_offset_m as f32,
-            length_m as f32,
-            suspension,
-            Gravity::new(gravity_mps2 as f32).unwrap_or(Gravity::STANDARD),
-        )
-        .map_err(|e| at.error(None, Some("geometry"), e.to_string()))?;
+        let geometry = Gravity::new(gravity_mps2 as f32)
+            .and_then(|gravity| {
+                RideGeometry::new(hub_offset_m as f32, length_m as f32, suspension, gravity)
+            })
+            .map_err(|e| at.error(None, Some("geometry"), e.to_string()))?;
 
         let l = &raw.limits;
         let accel_range = "above 0, up to 10 rad/s²";

@@ -397,14 +397,13 @@ pub fn simulate<O: Observer + ?Sized>(
         false,
     )?;
     let t_start = profile.start_s();
-    let end = check_f64(
-        "end_s",
-        end_s,
-        t_start,
-        t_start + 2.0 * super::profile::MAX_PROFILE_DURATION_S,
-        true,
-    )
-    .map_err(|_| ParamError::OutOfRange("end_s"))?;
+    if !end_s.is_finite() {
+        return Err(ParamError::NonFinite("end_s").into());
+    }
+    if end_s < t_start || end_s > t_start + 2.0 * super::profile::MAX_PROFILE_DURATION_S {
+        return Err(ParamError::OutOfRange("end_s").into());
+    }
+    let end = end_s;
     let max_speed = f64::from(crate::steady::MAX_SHAFT_SPEED_RAD_S);
     check_f64(
         "start_speed_rad_s",
@@ -423,14 +422,15 @@ pub fn simulate<O: Observer + ?Sized>(
     }
 
     let suspension = model.suspension();
-    let mut breakpoints: Vec<f64> = profile
+    // Breakpoints still ahead, latest first: the next one is popped off the end.
+    let mut pending: Vec<f64> = profile
         .breakpoints()
         .chain(permit_drop)
         .chain(core::iter::once(end))
         .filter(|&t| t > t_start && t <= end)
         .collect();
-    breakpoints.sort_by(f64::total_cmp);
-    breakpoints.dedup();
+    pending.sort_by(|a, b| b.total_cmp(a));
+    pending.dedup();
 
     let mut grid = Grid {
         start: t_start,
@@ -452,8 +452,6 @@ pub fn simulate<O: Observer + ?Sized>(
     let mut coasting: Option<(f64, f64)> = None;
     let mut t = t_start;
     let mut next_h: f64 = 0.0;
-    let mut upcoming = breakpoints.into_iter().peekable();
-    let mut extra_breakpoint: Option<f64> = None;
     loop {
         // Events at the breakpoint t: permit drop, or a commanded step.
         if coasting.is_none() && permit_drop.is_some_and(|drop| drop <= t) {
@@ -464,7 +462,10 @@ pub fn simulate<O: Observer + ?Sized>(
                 .map(|s| t + s)
                 .filter(|&s| s > t && s < end)
             {
-                extra_breakpoint = Some(stop);
+                let at = pending.partition_point(|&b| b > stop);
+                if pending.get(at) != Some(&stop) {
+                    pending.insert(at, stop);
+                }
             }
         }
         if coasting.is_none() && options.drive.is_none() {
@@ -510,25 +511,7 @@ pub fn simulate<O: Observer + ?Sized>(
             }
         };
 
-        let next = match (upcoming.peek().copied(), extra_breakpoint) {
-            (Some(a), Some(b)) if b <= a => {
-                extra_breakpoint = None;
-                if b == a {
-                    upcoming.next();
-                }
-                Some(b)
-            }
-            (Some(a), _) => {
-                upcoming.next();
-                Some(a)
-            }
-            (None, Some(b)) => {
-                extra_breakpoint = None;
-                Some(b)
-            }
-            (None, None) => None,
-        };
-        let Some(next) = next else {
+        let Some(next) = pending.pop() else {
             // The end: samples due at the end itself.
             let mut monitor = Monitor {
                 model,

@@ -377,13 +377,13 @@ impl SpeedProfile {
     /// samples sit exactly there.
     #[must_use]
     pub fn step_at(&self, time_s: f64) -> Option<(f64, f64)> {
-        self.samples
-            .windows(2)
-            .find(|w| matches!(w, [a, b] if a.time_s == time_s && b.time_s == time_s))
-            .and_then(|w| match w {
-                [a, b] => Some((a.speed_rad_s, b.speed_rad_s)),
-                _ => None,
-            })
+        let first = self.samples.partition_point(|s| s.time_s < time_s);
+        match (self.samples.get(first), self.samples.get(first + 1)) {
+            (Some(a), Some(b)) if a.time_s == time_s && b.time_s == time_s => {
+                Some((a.speed_rad_s, b.speed_rad_s))
+            }
+            _ => None,
+        }
     }
 
     /// The distinct sample times (the breakpoints), in order.
