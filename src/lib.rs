@@ -13,6 +13,10 @@ pub mod units;
 
 #[cfg(feature = "std")]
 pub mod reference;
+#[cfg(feature = "std")]
+pub mod ride_file;
+#[cfg(feature = "std")]
+pub mod sim;
 
 pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};

@@ -6,4 +6,5 @@
 //! Being a host-side test oracle, it may index its small fixed-size arrays.
 #![allow(clippy::indexing_slicing)]
 
+pub mod seat;
 pub mod steady;

@@ -1,0 +1,447 @@
+//! `swingdrive`: steady-state tables and profile replays for test benches
+//! and commissioning (host only, feature `cli`).
+//!
+//! Exit status: 0 on success, 1 when a check the command performs fails
+//! (a slack chain, a profile outside the ride's limits), 2 on bad input or
+//! when an output cannot be written. With `--json` exactly one JSON object
+//! is printed on stdout, also on failure (`{"error": …}`). File formats and
+//! JSON keys: `docs/files.md`.
+
+use std::io::{IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use clap::{Args, Parser, Subcommand};
+use serde::Serialize;
+use serde_json::{json, Value};
+use swingdrive::ride_file::RideFile;
+use swingdrive::sim::output::{render_svg, write_trace_csv};
+use swingdrive::sim::{replay, ReplayOptions, SpeedProfile, StartCondition};
+use swingdrive::{Angle, Suspension};
+
+/// Seat swing of rotating swing rides: steady-state tables and profile replays.
+#[derive(Parser)]
+#[command(name = "swingdrive", version, about)]
+struct Cli {
+    /// Print exactly one JSON object on stdout instead of text.
+    #[arg(long, global = true)]
+    json: bool,
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Steady-state table: speed, load factor, sensitivity and slow swing
+    /// period for a range of swing angles.
+    Table(TableArgs),
+    /// Replay a speed profile and report peak angle, residual swing, peak
+    /// load factor and chain slack.
+    Replay(ReplayArgs),
+}
+
+#[derive(Args)]
+struct TableArgs {
+    /// Ride description (TOML).
+    ride: PathBuf,
+    /// Angle step between rows, degrees (0.1 to 45).
+    #[arg(long, default_value_t = 5.0)]
+    step_deg: f64,
+    /// Largest angle, degrees (up to 89).
+    #[arg(long, default_value_t = 60.0)]
+    max_deg: f64,
+}
+
+#[derive(Args)]
+struct ReplayArgs {
+    /// Ride description (TOML).
+    ride: PathBuf,
+    /// Speed profile (CSV: time_s and speed_rad_s or speed_rpm).
+    profile: PathBuf,
+    /// Settling window after the profile, s, in which the residual swing is measured.
+    #[arg(long, default_value_t = 60.0)]
+    settle: f64,
+    /// Start in steady rotation at the first sample's speed (default: hanging at standstill).
+    #[arg(long)]
+    start_steady: bool,
+    /// Time step of the CSV trace, s.
+    #[arg(long, default_value_t = 0.01)]
+    dt: f64,
+    /// Drop the run permit at this time, s (the top coasts; needs a [drive] table).
+    #[arg(long)]
+    permit_drop: Option<f64>,
+    /// Ignore the ride file's [drive] table: the shaft follows the profile exactly.
+    #[arg(long)]
+    ideal_drive: bool,
+    /// Write the time series as CSV to this file.
+    #[arg(long)]
+    csv: Option<PathBuf>,
+    /// Write a plot of speed and swing angles as SVG to this file.
+    #[arg(long)]
+    svg: Option<PathBuf>,
+}
+
+/// Why a command did not succeed.
+enum Failure {
+    /// Bad input or an output that could not be written (exit 2).
+    Input(String),
+}
+
+/// What a command produced: text, a JSON object, and whether its checks passed.
+struct Report {
+    text: String,
+    json: Value,
+    passed: bool,
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match &cli.command {
+        Command::Table(args) => table(args),
+        Command::Replay(args) => replay_command(args, cli.json),
+    };
+    let mut stdout = std::io::stdout().lock();
+    match result {
+        Ok(report) => {
+            let printed = if cli.json {
+                writeln!(stdout, "{}", report.json)
+            } else {
+                write!(stdout, "{}", report.text)
+            };
+            if printed.is_err() {
+                return ExitCode::from(2);
+            }
+            if report.passed {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(1)
+            }
+        }
+        Err(Failure::Input(message)) => {
+            eprintln!("error: {message}");
+            if cli.json {
+                let _ = writeln!(stdout, "{}", json!({ "error": message }));
+            }
+            ExitCode::from(2)
+        }
+    }
+}
+
+/// One row of the steady-state table.
+#[derive(Serialize)]
+struct TableRow {
+    angle_deg: f64,
+    speed_rad_s: f64,
+    speed_rpm: f64,
+    speed_deg_s: f64,
+    load_factor: f64,
+    sensitivity_deg_per_rpm: Option<f64>,
+    slow_mode_period_s: Option<f64>,
+}
+
+/// An f32 result as the f64 with the same shortest decimal form, so JSON
+/// shows 1.0038198 rather than 1.0038198232650757.
+fn widen(x: f32) -> f64 {
+    x.to_string().parse().unwrap_or(f64::from(x))
+}
+
+fn finite(x: f32) -> Option<f64> {
+    x.is_finite().then(|| widen(x))
+}
+
+fn table(args: &TableArgs) -> Result<Report, Failure> {
+    let ride = RideFile::from_path(&args.ride).map_err(|e| Failure::Input(e.to_string()))?;
+    if !(args.step_deg.is_finite() && (0.1..=45.0).contains(&args.step_deg)) {
+        return Err(Failure::Input(
+            "--step-deg must be between 0.1 and 45".into(),
+        ));
+    }
+    if !(args.max_deg.is_finite() && (0.0..=89.0).contains(&args.max_deg)) {
+        return Err(Failure::Input("--max-deg must be between 0 and 89".into()));
+    }
+    let geometry = ride.geometry;
+    let mut rows = Vec::new();
+    // At most 891 rows (89° in 0.1° steps).
+    for k in 0..=890_u32 {
+        let angle_deg = f64::from(k) * args.step_deg;
+        if angle_deg > args.max_deg + 1e-9 {
+            break;
+        }
+        #[allow(clippy::cast_possible_truncation)]
+        let state = geometry
+            .steady_state_at_angle(Angle::from_deg(angle_deg as f32))
+            .map_err(|e| Failure::Input(e.to_string()))?;
+        let slow = geometry.swing_modes(&state).slowest();
+        rows.push(TableRow {
+            angle_deg,
+            speed_rad_s: widen(state.speed.rad_per_s()),
+            speed_rpm: widen(state.speed.rpm()),
+            speed_deg_s: widen(state.speed.deg_per_s()),
+            load_factor: widen(state.load_factor),
+            sensitivity_deg_per_rpm: finite(state.sensitivity.deg_per_rpm()),
+            slow_mode_period_s: finite(slow.period_s()),
+        });
+    }
+    let suspension = suspension_name(geometry.suspension());
+    let mut text = format!(
+        "ride {}: {suspension}, hub offset {} m, length {} m, g {} m/s²\n\
+         {:>9} {:>10} {:>8} {:>8} {:>7} {:>10} {:>10}\n",
+        args.ride.display(),
+        geometry.hub_offset_m(),
+        geometry.length_m(),
+        geometry.gravity().mps2(),
+        "angle °",
+        "rad/s",
+        "rpm",
+        "°/s",
+        "load",
+        "°/rpm",
+        "period s",
+    );
+    let opt = |x: Option<f64>, digits: usize| {
+        x.map_or_else(|| "-".to_owned(), |v| format!("{v:.digits$}"))
+    };
+    for r in &rows {
+        text.push_str(&format!(
+            "{:>9.1} {:>10.4} {:>8.3} {:>8.2} {:>7.3} {:>10} {:>10}\n",
+            r.angle_deg,
+            r.speed_rad_s,
+            r.speed_rpm,
+            r.speed_deg_s,
+            r.load_factor,
+            opt(r.sensitivity_deg_per_rpm, 2),
+            opt(r.slow_mode_period_s, 2),
+        ));
+    }
+    let json = json!({
+        "ride_file": args.ride.display().to_string(),
+        "suspension": suspension,
+        "hub_offset_m": ride.seat.hub_offset_m(),
+        "length_m": ride.seat.length_m(),
+        "gravity_mps2": ride.seat.gravity_mps2(),
+        "rows": rows,
+    });
+    Ok(Report {
+        text,
+        json,
+        passed: true,
+    })
+}
+
+fn suspension_name(s: Suspension) -> &'static str {
+    match s {
+        Suspension::Chain => "chain",
+        Suspension::Rod => "rod",
+    }
+}
+
+fn write_file(path: &Path, bytes: &[u8]) -> Result<(), Failure> {
+    std::fs::write(path, bytes)
+        .map_err(|e| Failure::Input(format!("{}: cannot write: {e}", path.display())))
+}
+
+fn replay_command(args: &ReplayArgs, json_out: bool) -> Result<Report, Failure> {
+    let ride = RideFile::from_path(&args.ride).map_err(|e| Failure::Input(e.to_string()))?;
+    let profile =
+        SpeedProfile::from_csv_path(&args.profile).map_err(|e| Failure::Input(e.to_string()))?;
+    let drive = if args.ideal_drive { None } else { ride.drive };
+    if args.permit_drop.is_some() && drive.is_none() {
+        return Err(Failure::Input(
+            "--permit-drop needs a [drive] table in the ride file (coast-down friction)".into(),
+        ));
+    }
+    let options = ReplayOptions {
+        settle_s: args.settle,
+        start: if args.start_steady {
+            StartCondition::Steady
+        } else {
+            StartCondition::Hanging
+        },
+        output_step_s: args.dt,
+        drive,
+        permit_drop_s: args.permit_drop,
+        record_trace: args.csv.is_some() || args.svg.is_some(),
+        ..ReplayOptions::default()
+    };
+    let mut stderr = std::io::stderr();
+    let show_progress = stderr.is_terminal();
+    let mut last_percent = u32::MAX;
+    let mut progress = |fraction: f64| {
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let percent = (fraction * 100.0).floor() as u32;
+        if percent != last_percent {
+            last_percent = percent;
+            let _ = write!(stderr, "\rreplay {percent:3}%");
+            if percent >= 100 {
+                let _ = writeln!(stderr);
+            }
+        }
+    };
+    let outcome = replay(
+        &ride.seat,
+        &profile,
+        &options,
+        if show_progress {
+            Some(&mut progress)
+        } else {
+            None
+        },
+    )
+    .map_err(|e| Failure::Input(e.to_string()))?;
+
+    if let Some(path) = &args.csv {
+        let mut bytes = Vec::new();
+        write_trace_csv(&outcome.trace, &mut bytes)
+            .map_err(|e| Failure::Input(format!("{}: {e}", path.display())))?;
+        write_file(path, &bytes)?;
+    }
+    if let Some(path) = &args.svg {
+        let title = format!("{} on {}", file_name(&args.profile), file_name(&args.ride));
+        let svg = render_svg(&outcome.trace, &title).map_err(|e| Failure::Input(e.to_string()))?;
+        write_file(path, svg.as_bytes())?;
+    }
+
+    let s = &outcome.summary;
+    let limits = ride.limits.check(&s.profile);
+    let passed = !s.chain_slack && limits.ok;
+    let text = if json_out {
+        String::new()
+    } else {
+        replay_text(args, &ride, &outcome.summary, &limits, passed)
+    };
+    let mut json = serde_json::to_value(s).map_err(|e| Failure::Input(e.to_string()))?;
+    if let Value::Object(map) = &mut json {
+        map.insert("ride_file".into(), json!(args.ride.display().to_string()));
+        map.insert(
+            "profile_file".into(),
+            json!(args.profile.display().to_string()),
+        );
+        map.insert(
+            "start".into(),
+            json!(if args.start_steady {
+                "steady"
+            } else {
+                "hanging"
+            }),
+        );
+        map.insert("drive_model".into(), json!(drive.is_some()));
+        map.insert(
+            "limits".into(),
+            serde_json::to_value(&limits).unwrap_or(Value::Null),
+        );
+        map.insert(
+            "csv_file".into(),
+            json!(args.csv.as_ref().map(|p| p.display().to_string())),
+        );
+        map.insert(
+            "svg_file".into(),
+            json!(args.svg.as_ref().map(|p| p.display().to_string())),
+        );
+        map.insert("passed".into(), json!(passed));
+    }
+    Ok(Report { text, json, passed })
+}
+
+fn file_name(path: &Path) -> String {
+    path.file_name().map_or_else(
+        || path.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
+}
+
+fn replay_text(
+    args: &ReplayArgs,
+    ride: &RideFile,
+    s: &swingdrive::sim::ReplaySummary,
+    limits: &swingdrive::ride_file::LimitReport,
+    passed: bool,
+) -> String {
+    let mut t = String::new();
+    let g = ride.geometry;
+    t.push_str(&format!(
+        "ride     {}: {}, hub offset {} m, length {} m{}\n",
+        args.ride.display(),
+        s.suspension,
+        g.hub_offset_m(),
+        g.length_m(),
+        if ride.seat.damping_per_s() > 0.0 {
+            format!(", damping {} 1/s", ride.seat.damping_per_s())
+        } else {
+            String::new()
+        }
+    ));
+    t.push_str(&format!(
+        "profile  {}: {:.2} s to {:.2} s, settling {:.1} s\n",
+        args.profile.display(),
+        s.start_s,
+        s.profile_end_s,
+        s.end_s - s.profile_end_s
+    ));
+    t.push_str(&format!(
+        "peak angle from vertical  {:7.2}° at {:.2} s (steady at top speed {:.2}°, overshoot {:.2}°)\n",
+        s.peak_angle_deg, s.peak_angle_time_s, s.max_steady_angle_deg, s.overshoot_deg
+    ));
+    t.push_str(&format!(
+        "peak tangential swing     {:7.2}°\n",
+        s.peak_tangential_deg
+    ));
+    t.push_str(&format!(
+        "residual swing            {:7.2}° (from {:.2} s, about the steady {:.2}° at {:.4} rad/s)\n",
+        s.residual_swing_deg, s.residual_window_start_s, s.final_steady_angle_deg, s.final_speed_rad_s
+    ));
+    t.push_str(&format!(
+        "peak load factor          {:7.3}  at {:.2} s\n",
+        s.peak_load_factor, s.peak_load_factor_time_s
+    ));
+    t.push_str(&format!(
+        "lowest tension / weight   {:7.3}  at {:.2} s\n",
+        s.min_tension_ratio, s.min_tension_time_s
+    ));
+    if s.chain_slack {
+        t.push_str(&format!(
+            "chain slack               {} event(s), the first at {:.3} s: results after it are not physical\n",
+            s.slack_event_count,
+            s.slack_events.first().map_or(f64::NAN, |e| e.start_s)
+        ));
+    } else if s.suspension == "chain" {
+        t.push_str("chain slack               none\n");
+    }
+    let mut limit_line = String::new();
+    if limits.steps > 0 {
+        limit_line.push_str(&format!("{} speed step(s); ", limits.steps));
+    }
+    for c in &limits.checks {
+        limit_line.push_str(&format!(
+            "{} {:.4} {} {:.4}; ",
+            c.limit,
+            c.profile,
+            if c.ok { "<=" } else { ">" },
+            c.allowed
+        ));
+    }
+    t.push_str(&format!(
+        "profile vs [limits]       {}: {}\n",
+        if limits.ok { "ok" } else { "EXCEEDED" },
+        limit_line.trim_end_matches("; ")
+    ));
+    t.push_str(&format!(
+        "solver                    {} steps ({} rejected), rtol {:e}, atol {:e}\n",
+        s.solver.accepted_steps,
+        s.solver.rejected_steps,
+        s.solver.relative_tolerance,
+        s.solver.absolute_tolerance
+    ));
+    for (what, path) in [("csv", &args.csv), ("svg", &args.svg)] {
+        if let Some(p) = path {
+            t.push_str(&format!("wrote {what:<19} {}\n", p.display()));
+        }
+    }
+    t.push_str(if passed {
+        "result: pass\n"
+    } else if s.chain_slack {
+        "result: FAIL (slack chain)\n"
+    } else {
+        "result: FAIL (profile outside the ride's limits)\n"
+    });
+    t
+}

@@ -1,0 +1,198 @@
+//! The trace of a replay as CSV and as an SVG plot.
+
+use std::fmt;
+use std::io::Write;
+
+use plotters::prelude::*;
+
+use super::replay::TraceSample;
+
+/// Writes the trace as CSV: a header row with the field names of
+/// [`TraceSample`] (documented in `docs/files.md`), then one row per sample.
+///
+/// # Errors
+/// Any error of the writer.
+pub fn write_trace_csv<W: Write>(trace: &[TraceSample], writer: W) -> Result<(), csv::Error> {
+    let mut csv = csv::Writer::from_writer(writer);
+    for sample in trace {
+        csv.serialize(sample)?;
+    }
+    csv.flush()?;
+    Ok(())
+}
+
+/// A plot that could not be drawn.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PlotError(String);
+
+impl fmt::Display for PlotError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "cannot draw the plot: {}", self.0)
+    }
+}
+
+impl std::error::Error for PlotError {}
+
+fn plot_error(e: impl fmt::Display) -> PlotError {
+    PlotError(e.to_string())
+}
+
+/// Most points drawn per curve; longer traces are thinned keeping each
+/// bucket's minimum and maximum, so peaks survive.
+pub const MAX_PLOT_POINTS: usize = 4000;
+
+/// Thins `(t, value)` points to at most about [`MAX_PLOT_POINTS`], keeping
+/// the smallest and largest value of each bucket in time order.
+fn thin(points: impl ExactSizeIterator<Item = (f64, f64)>) -> Vec<(f64, f64)> {
+    let n = points.len();
+    let buckets = MAX_PLOT_POINTS / 2;
+    if n <= MAX_PLOT_POINTS {
+        return points.collect();
+    }
+    let per_bucket = n.div_ceil(buckets);
+    let mut out = Vec::with_capacity(2 * buckets + 2);
+    let mut bucket: Vec<(f64, f64)> = Vec::with_capacity(per_bucket);
+    let flush = |bucket: &mut Vec<(f64, f64)>, out: &mut Vec<(f64, f64)>| {
+        let min = bucket.iter().copied().min_by(|a, b| a.1.total_cmp(&b.1));
+        let max = bucket.iter().copied().max_by(|a, b| a.1.total_cmp(&b.1));
+        if let (Some(min), Some(max)) = (min, max) {
+            if min.0 <= max.0 {
+                out.extend([min, max]);
+            } else {
+                out.extend([max, min]);
+            }
+        }
+        bucket.clear();
+    };
+    for p in points {
+        bucket.push(p);
+        if bucket.len() == per_bucket {
+            flush(&mut bucket, &mut out);
+        }
+    }
+    flush(&mut bucket, &mut out);
+    out
+}
+
+/// Range of values including zero, with a margin, never empty.
+fn value_range(curves: &[&[(f64, f64)]]) -> (f64, f64) {
+    let (lo, hi) = curves
+        .iter()
+        .flat_map(|c| c.iter())
+        .fold((0.0_f64, 0.0_f64), |(lo, hi), &(_, v)| {
+            (lo.min(v), hi.max(v))
+        });
+    let margin = 0.05 * (hi - lo).max(1.0);
+    (lo - margin, hi + margin)
+}
+
+/// Draws shaft speed (upper panel, rpm) and swing angles (lower panel,
+/// degrees) against time, as an SVG document.
+///
+/// # Errors
+/// [`PlotError`] if plotters fails.
+pub fn render_svg(trace: &[TraceSample], title: &str) -> Result<String, PlotError> {
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (1000, 700)).into_drawing_area();
+        root.fill(&WHITE).map_err(plot_error)?;
+        let root = root.titled(title, ("sans-serif", 20)).map_err(plot_error)?;
+        let (upper, lower) = root.split_vertically(300);
+        let t0 = trace.first().map_or(0.0, |s| s.time_s);
+        let t1 = trace.last().map_or(1.0, |s| s.time_s).max(t0 + 1e-3);
+        let rpm = 60.0 / core::f64::consts::TAU;
+
+        let speed = thin(trace.iter().map(|s| (s.time_s, s.speed_rad_s * rpm)));
+        let command = thin(trace.iter().map(|s| (s.time_s, s.command_rad_s * rpm)));
+        let (lo, hi) = value_range(&[&speed, &command]);
+        let mut chart = ChartBuilder::on(&upper)
+            .margin(10)
+            .x_label_area_size(35)
+            .y_label_area_size(60)
+            .build_cartesian_2d(t0..t1, lo..hi)
+            .map_err(plot_error)?;
+        chart
+            .configure_mesh()
+            .x_desc("time [s]")
+            .y_desc("shaft speed [rpm]")
+            .draw()
+            .map_err(plot_error)?;
+        chart
+            .draw_series(LineSeries::new(
+                command,
+                RGBColor(150, 150, 150).stroke_width(1),
+            ))
+            .map_err(plot_error)?
+            .label("command")
+            .legend(|(x, y)| PathElement::new([(x, y), (x + 20, y)], RGBColor(150, 150, 150)));
+        chart
+            .draw_series(LineSeries::new(speed, BLUE.stroke_width(2)))
+            .map_err(plot_error)?
+            .label("shaft")
+            .legend(|(x, y)| PathElement::new([(x, y), (x + 20, y)], BLUE));
+        chart
+            .configure_series_labels()
+            .position(SeriesLabelPosition::LowerRight)
+            .border_style(BLACK)
+            .background_style(WHITE.mix(0.8))
+            .draw()
+            .map_err(plot_error)?;
+
+        let vertical = thin(trace.iter().map(|s| (s.time_s, s.angle_from_vertical_deg)));
+        let radial = thin(trace.iter().map(|s| (s.time_s, s.radial_angle_deg)));
+        let tangential = thin(trace.iter().map(|s| (s.time_s, s.tangential_angle_deg)));
+        let (lo, hi) = value_range(&[&vertical, &radial, &tangential]);
+        let mut chart = ChartBuilder::on(&lower)
+            .margin(10)
+            .x_label_area_size(35)
+            .y_label_area_size(60)
+            .build_cartesian_2d(t0..t1, lo..hi)
+            .map_err(plot_error)?;
+        chart
+            .configure_mesh()
+            .x_desc("time [s]")
+            .y_desc("swing angle [deg]")
+            .draw()
+            .map_err(plot_error)?;
+        let curves = [
+            (vertical, "from vertical", RED),
+            (radial, "radial", GREEN),
+            (tangential, "tangential", MAGENTA),
+        ];
+        for (points, label, colour) in curves {
+            chart
+                .draw_series(LineSeries::new(points, colour.stroke_width(1)))
+                .map_err(plot_error)?
+                .label(label)
+                .legend(move |(x, y)| PathElement::new([(x, y), (x + 20, y)], colour));
+        }
+        chart
+            .configure_series_labels()
+            .position(SeriesLabelPosition::LowerRight)
+            .border_style(BLACK)
+            .background_style(WHITE.mix(0.8))
+            .draw()
+            .map_err(plot_error)?;
+        root.present().map_err(plot_error)?;
+    }
+    Ok(svg)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn thinning_keeps_the_extremes() {
+        let points: Vec<(f64, f64)> = (0..100_000)
+            .map(|i| {
+                let t = f64::from(i) * 1e-3;
+                (t, (t * 3.0).sin() + if i == 54_321 { 5.0 } else { 0.0 })
+            })
+            .collect();
+        let thinned = thin(points.iter().copied());
+        assert!(thinned.len() <= MAX_PLOT_POINTS + 2);
+        assert!(thinned.iter().any(|&(_, v)| v > 4.0));
+        assert!(thinned.windows(2).all(|w| w[0].0 <= w[1].0));
+    }
+}
