@@ -143,7 +143,7 @@ impl SpeedRamp {
     /// [`MAX_TICK_S`]. The ramp then does not advance: its state is unchanged
     /// and [`SpeedRamp::setpoint`] still returns the previous setpoint.
     pub fn step(&mut self, dt_s: f32) -> Result<Setpoint, ParamError> {
-        let quanta = checked_period("dt_s", dt_s, f32::MIN_POSITIVE, MAX_TICK_S)?;
+        let quanta = checked_period("dt_s", dt_s, Zero::Refused, 0.0, MAX_TICK_S)?;
         let (segment, into) = self
             .plan
             .advance(self.segment, self.into.saturating_add(quanta));
@@ -240,7 +240,7 @@ impl SpeedRamp {
     /// # Errors
     /// [`ParamError`] naming `ahead_s`.
     pub fn predict(&self, ahead_s: f32) -> Result<Setpoint, ParamError> {
-        let quanta = checked_period("ahead_s", ahead_s, 0.0, MAX_LOOK_AHEAD_S)?;
+        let quanta = checked_period("ahead_s", ahead_s, Zero::Allowed, 0.0, MAX_LOOK_AHEAD_S)?;
         Ok(self
             .plan
             .state_after(self.segment, self.into.saturating_add(quanta)))
@@ -259,7 +259,13 @@ impl SpeedRamp {
     /// # Errors
     /// [`ParamError`] naming `period_s`.
     pub fn sample<const N: usize>(&self, period_s: f32) -> Result<Samples<N>, ParamError> {
-        let period = checked_period("period_s", period_s, MIN_SAMPLE_PERIOD_S, MAX_LOOK_AHEAD_S)?;
+        let period = checked_period(
+            "period_s",
+            period_s,
+            Zero::Refused,
+            MIN_SAMPLE_PERIOD_S,
+            MAX_LOOK_AHEAD_S,
+        )?;
         let remaining = self.plan.remaining_quanta(self.segment, self.into);
         let whole = remaining / period;
         let total = whole
@@ -303,13 +309,27 @@ impl SpeedRamp {
     }
 }
 
-/// A period in seconds, checked to be finite and in `[min, max]`, in quanta.
-fn checked_period(name: &'static str, s: f32, min: f32, max: f32) -> Result<u64, ParamError> {
+/// Whether a period of exactly zero is accepted.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Zero {
+    Allowed,
+    Refused,
+}
+
+/// A period in seconds, checked to be finite and in `[min, max]` (and not zero
+/// when refused), in quanta.
+fn checked_period(
+    name: &'static str,
+    s: f32,
+    zero: Zero,
+    min: f32,
+    max: f32,
+) -> Result<u64, ParamError> {
     if !s.is_finite() {
         Err(ParamError::NonFinite(name))
     } else if s < 0.0 {
         Err(ParamError::Negative(name))
-    } else if s == 0.0 && min > 0.0 {
+    } else if s == 0.0 && zero == Zero::Refused {
         Err(ParamError::NotPositive(name))
     } else if s < min || s > max {
         Err(ParamError::OutOfRange(name))
