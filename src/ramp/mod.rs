@@ -46,7 +46,7 @@ pub use setpoint::{RampPhase, Setpoint};
 use crate::error::ParamError;
 use crate::units::AngularSpeed;
 use clock::{quanta_from_s, s_from_quanta};
-use plan::{admit_target, build, check_speed};
+use plan::{admit_target, build, check_speed, Anchor};
 
 /// Longest accepted tick, s. A setpoint generator that has not run for longer
 /// has a fault of its own; the caller must stop the ride, not catch up.
@@ -222,7 +222,12 @@ impl SpeedRamp {
         }
         let m = if m == 0.0 { 0.0 } else { m };
         let target = self.plan.target().rad_per_s();
-        self.start(build(&self.limits, self.reverse, m, 0.0, target));
+        self.start(build(
+            &self.limits,
+            self.reverse,
+            Anchor::exact(m, 0.0),
+            target,
+        ));
         Ok(self.setpoint())
     }
 
@@ -291,14 +296,8 @@ impl SpeedRamp {
     }
 
     fn replan(&mut self, target: f32) {
-        let now = self.setpoint();
-        let plan = build(
-            &self.limits,
-            self.reverse,
-            now.speed.rad_per_s(),
-            now.acceleration_rad_s2,
-            target,
-        );
+        let now = self.plan.anchor_after(self.segment, self.into);
+        let plan = build(&self.limits, self.reverse, now, target);
         self.start(plan);
     }
 

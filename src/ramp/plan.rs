@@ -52,7 +52,12 @@ const JERK_ROUNDING: f32 = 1.0e-4;
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Segment {
     start_speed: f32,
+    /// Low-order part of the start speed: the rounding error of `start_speed`
+    /// when the segment was anchored at an evaluated state (re-plan), else 0.
+    start_speed_lo: f32,
     start_accel: f32,
+    /// Low-order part of the start acceleration, as `start_speed_lo`.
+    start_accel_lo: f32,
     jerk: f32,
     duration_s: f32,
     end_speed: f32,
@@ -63,7 +68,9 @@ pub struct Segment {
 impl Segment {
     const EMPTY: Self = Self {
         start_speed: 0.0,
+        start_speed_lo: 0.0,
         start_accel: 0.0,
+        start_accel_lo: 0.0,
         jerk: 0.0,
         duration_s: 0.0,
         end_speed: 0.0,
@@ -128,15 +135,69 @@ impl Segment {
     /// The state `quanta` after the segment's start (clamped to the segment).
     #[must_use]
     pub fn state_at(&self, quanta: u64) -> Setpoint {
-        let t = s_from_quanta(quanta.min(self.duration_quanta));
-        let accel = self.start_accel + self.jerk * t;
-        let speed = self.start_speed + t * (self.start_accel + 0.5 * self.jerk * t);
+        let x = self.anchor_at(quanta);
         Setpoint {
-            speed: AngularSpeed::from_rad_per_s(between(speed, self.start_speed, self.end_speed)),
-            acceleration_rad_s2: between(accel, self.start_accel, self.end_accel),
+            speed: AngularSpeed::from_rad_per_s(x.v),
+            acceleration_rad_s2: x.a,
             jerk_rad_s3: self.jerk,
             phase: self.phase(),
         }
+    }
+
+    /// The state `quanta` after the segment's start as rounded value plus
+    /// rounding error, so that a re-plan can anchor at it without losing the
+    /// error (otherwise a re-plan on every tick would add one rounding per tick,
+    /// like summing increments in `f32`).
+    pub(crate) fn anchor_at(&self, quanta: u64) -> Anchor {
+        let t = s_from_quanta(quanta.min(self.duration_quanta));
+        let a_inc = self.start_accel_lo + self.jerk * t;
+        let v_inc = self.start_speed_lo
+            + t * ((self.start_accel + self.start_accel_lo) + 0.5 * self.jerk * t);
+        let (v, v_lo) = two_sum(self.start_speed, v_inc);
+        let (a, a_lo) = two_sum(self.start_accel, a_inc);
+        let (v, v_lo) = clamp_anchor(v, v_lo, self.start_speed, self.end_speed);
+        let (a, a_lo) = clamp_anchor(a, a_lo, self.start_accel, self.end_accel);
+        Anchor { v, v_lo, a, a_lo }
+    }
+}
+
+/// A state as rounded `f32` values plus their rounding errors.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) struct Anchor {
+    pub(crate) v: f32,
+    pub(crate) v_lo: f32,
+    pub(crate) a: f32,
+    pub(crate) a_lo: f32,
+}
+
+impl Anchor {
+    /// An exactly known state.
+    pub(crate) const fn exact(v: f32, a: f32) -> Self {
+        Self {
+            v,
+            v_lo: 0.0,
+            a,
+            a_lo: 0.0,
+        }
+    }
+}
+
+/// `a + b` rounded, and its exact rounding error (Knuth's TwoSum; exact in
+/// IEEE binary arithmetic with round-to-nearest, which Rust guarantees).
+fn two_sum(a: f32, b: f32) -> (f32, f32) {
+    let s = a + b;
+    let bb = s - a;
+    (s, (a - (s - bb)) + (b - bb))
+}
+
+/// A value limited to the interval spanned by `p` and `q`; the error term is
+/// dropped when the limit applies (the limit is then the exact value).
+fn clamp_anchor(x: f32, lo: f32, p: f32, q: f32) -> (f32, f32) {
+    let c = between(x, p, q);
+    if c == x {
+        (x, lo)
+    } else {
+        (c, 0.0)
     }
 }
 
@@ -204,7 +265,7 @@ impl Plan {
             return Err(ParamError::OutOfRange("acceleration"));
         }
         let (vt, clamped) = admit_target(reverse, check_speed("target", target.rad_per_s())?);
-        let mut plan = build(limits, reverse, v0, a0, vt);
+        let mut plan = build(limits, reverse, Anchor::exact(v0, a0), vt);
         plan.target_clamped = clamped;
         Ok(plan)
     }
@@ -292,6 +353,15 @@ impl Plan {
         }
     }
 
+    /// Like [`Plan::state_after`], with rounding errors kept (for re-planning).
+    pub(crate) fn anchor_after(&self, index: usize, quanta: u64) -> Anchor {
+        let (index, into) = self.advance(index, quanta);
+        match self.segments().get(index) {
+            Some(seg) => seg.anchor_at(into),
+            None => Anchor::exact(self.target, 0.0),
+        }
+    }
+
     /// Moves a position (segment `index`, `into` quanta within it) on by
     /// `quanta`; returns the new position. Past the end: `(len, 0)`.
     pub(crate) fn advance(&self, mut index: usize, quanta: u64) -> (usize, u64) {
@@ -345,16 +415,21 @@ struct Builder {
     len: usize,
     v: f32,
     a: f32,
+    /// Rounding errors of the start state, carried by the first segment only.
+    v_lo: f32,
+    a_lo: f32,
     overflow: bool,
 }
 
 impl Builder {
-    fn new(v: f32, a: f32) -> Self {
+    fn new(start: Anchor) -> Self {
         Self {
             segments: [Segment::EMPTY; MAX_SEGMENTS],
             len: 0,
-            v,
-            a,
+            v: start.v,
+            a: start.a,
+            v_lo: start.v_lo,
+            a_lo: start.a_lo,
             overflow: false,
         }
     }
@@ -368,12 +443,19 @@ impl Builder {
         } else {
             0
         };
+        if quanta == 0 && end_v == self.v && end_a == self.a {
+            // An empty phase that leaves the state as it is: the start state's
+            // rounding errors stay with the next segment.
+            return;
+        }
         if quanta > 0 {
             match self.segments.get_mut(self.len) {
                 Some(slot) => {
                     *slot = Segment {
                         start_speed: self.v,
+                        start_speed_lo: self.v_lo,
                         start_accel: self.a,
+                        start_accel_lo: self.a_lo,
                         jerk,
                         duration_s,
                         end_speed: end_v,
@@ -387,6 +469,8 @@ impl Builder {
         }
         self.v = end_v;
         self.a = end_a;
+        self.v_lo = 0.0;
+        self.a_lo = 0.0;
     }
 
     /// [`Builder::push`] in mirrored coordinates `w = s·v` (`s` = ±1).
@@ -456,9 +540,10 @@ fn emit_three_phase(b: &mut Builder, s: f32, p: &ThreePhase, wt: f32, j: f32) {
 }
 
 /// Builds the plan; inputs already checked (finite, in range, policy applied).
-pub(crate) fn build(limits: &RampLimits, reverse: Reverse, v0: f32, a0: f32, vt: f32) -> Plan {
+pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f32) -> Plan {
+    let (v0, a0) = (start.v, start.a);
     let j = limits.max_jerk_rad_s3();
-    let mut b = Builder::new(v0, a0);
+    let mut b = Builder::new(start);
     let mut overshoot = false;
     let mut jerk_raised = false;
 
@@ -529,7 +614,7 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, v0: f32, a0: f32, vt:
     let mut plan = if b.overflow {
         // Not reachable (see the module docs); kept total with a plan that is
         // never worse than the limits allow.
-        conservative(limits, v0, a0, vt)
+        conservative(limits, start, vt)
     } else {
         b.finish(vt)
     };
@@ -630,12 +715,13 @@ fn fallback(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, m: f32, j: f32)
 
 /// A plan that respects the smaller of the two limits throughout (used only if
 /// the time-optimal construction ever needed more than [`MAX_SEGMENTS`]).
-fn conservative(limits: &RampLimits, v0: f32, a0: f32, vt: f32) -> Plan {
+fn conservative(limits: &RampLimits, start: Anchor, vt: f32) -> Plan {
+    let (v0, a0) = (start.v, start.a);
     let j = limits.max_jerk_rad_s3();
     let m = limits
         .max_acceleration_rad_s2()
         .min(limits.max_deceleration_rad_s2());
-    let mut b = Builder::new(v0, a0);
+    let mut b = Builder::new(start);
     if a0 != 0.0 {
         let v_stop = v0 + a0 * a0.abs() / (2.0 * j);
         b.push(-a0.signum() * j, a0.abs() / j, v_stop, 0.0);
@@ -661,10 +747,10 @@ mod tests {
         // Biagiotti & Melchiorri (2008) §3.4: T = dv/a + a/j when the
         // acceleration limit is reached; T = 2·sqrt(dv/j) when it is not.
         let l = limits(1.0, 1.0, 2.0);
-        let p = build(&l, Reverse::Forbidden, 0.0, 0.0, 4.0);
+        let p = build(&l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 4.0);
         assert!((p.duration_s() - (4.0 / 1.0 + 1.0 / 2.0)).abs() < 1e-5);
         assert_eq!(p.segments().len(), 3);
-        let p = build(&l, Reverse::Forbidden, 0.0, 0.0, 0.125);
+        let p = build(&l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 0.125);
         assert!((p.duration_s() - 2.0 * (0.125_f32 / 2.0).sqrt()).abs() < 1e-6);
         assert_eq!(p.segments().len(), 2);
     }
@@ -682,7 +768,7 @@ mod tests {
             (limits(0.5, 1.0, 1.0), 5.0, -3.0, -8.0),
         ];
         for (l, v0, a0, vt) in cases {
-            let p = build(&l, Reverse::Allowed, v0, a0, vt);
+            let p = build(&l, Reverse::Allowed, Anchor::exact(v0, a0), vt);
             assert!(p.segments().len() <= MAX_SEGMENTS);
             let end = p.state_after(0, u64::MAX);
             assert_eq!(end.speed.rad_per_s(), vt);
