@@ -14,16 +14,23 @@ pub const QUANTA_PER_SECOND: f32 = 68_719_476_736.0;
 /// Seconds per quantum: 2⁻³⁶ s (about 14.6 ps).
 pub const SECONDS_PER_QUANTUM: f32 = 1.0 / QUANTA_PER_SECOND;
 
-/// Seconds to quanta, rounded to nearest. Negative or NaN give 0; values past
-/// the `u64` range saturate (Rust's float-to-int cast is saturating, never UB).
+/// Seconds to quanta, rounded to nearest (ties up). Negative or NaN give 0;
+/// values past the `u64` range saturate (Rust's float-to-int cast is
+/// saturating, never UB).
+///
+/// Adding one half and truncating rounds correctly: below 2²⁴ the sum is
+/// exact, and from 2²⁴ on every `f32` is a whole number, so the sum rounds back
+/// to it.
 #[must_use]
+#[inline]
 pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
-    libm::roundf(seconds * QUANTA_PER_SECOND) as u64
+    (seconds * QUANTA_PER_SECOND + 0.5) as u64
 }
 
 /// Quanta to seconds (rounded to `f32`, relative error ≤ 2⁻²⁴; used only for
 /// in-segment evaluation and for reporting).
 #[must_use]
+#[inline]
 pub(crate) fn s_from_quanta(quanta: u64) -> f32 {
     quanta as f32 * SECONDS_PER_QUANTUM
 }

@@ -14,6 +14,10 @@ pub struct RampLimits {
     accel: f32,
     decel: f32,
     jerk: f32,
+    // Reciprocals, computed once so that planning multiplies instead of divides.
+    inv_accel: f32,
+    inv_decel: f32,
+    inv_jerk: f32,
 }
 
 impl RampLimits {
@@ -59,25 +63,31 @@ impl RampLimits {
         max_deceleration_rad_s2: f32,
         max_jerk_rad_s3: f32,
     ) -> Result<Self, ParamError> {
+        let accel = check(
+            "max_acceleration",
+            max_acceleration_rad_s2,
+            Self::MIN_ACCELERATION_RAD_S2,
+            Self::MAX_ACCELERATION_RAD_S2,
+        )?;
+        let decel = check(
+            "max_deceleration",
+            max_deceleration_rad_s2,
+            Self::MIN_ACCELERATION_RAD_S2,
+            Self::MAX_ACCELERATION_RAD_S2,
+        )?;
+        let jerk = check(
+            "max_jerk",
+            max_jerk_rad_s3,
+            Self::MIN_JERK_RAD_S3,
+            Self::MAX_JERK_RAD_S3,
+        )?;
         Ok(Self {
-            accel: check(
-                "max_acceleration",
-                max_acceleration_rad_s2,
-                Self::MIN_ACCELERATION_RAD_S2,
-                Self::MAX_ACCELERATION_RAD_S2,
-            )?,
-            decel: check(
-                "max_deceleration",
-                max_deceleration_rad_s2,
-                Self::MIN_ACCELERATION_RAD_S2,
-                Self::MAX_ACCELERATION_RAD_S2,
-            )?,
-            jerk: check(
-                "max_jerk",
-                max_jerk_rad_s3,
-                Self::MIN_JERK_RAD_S3,
-                Self::MAX_JERK_RAD_S3,
-            )?,
+            accel,
+            decel,
+            jerk,
+            inv_accel: 1.0 / accel,
+            inv_decel: 1.0 / decel,
+            inv_jerk: 1.0 / jerk,
         })
     }
 
@@ -97,6 +107,11 @@ impl RampLimits {
     #[must_use]
     pub const fn max_jerk_rad_s3(&self) -> f32 {
         self.jerk
+    }
+
+    /// `1 / max_acceleration`, `1 / max_deceleration`, `1 / max_jerk`.
+    pub(crate) const fn reciprocals(&self) -> (f32, f32, f32) {
+        (self.inv_accel, self.inv_decel, self.inv_jerk)
     }
 
     /// The magnitude limit that applies to `acceleration_rad_s2` at `speed_rad_s`.

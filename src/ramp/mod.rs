@@ -155,7 +155,10 @@ impl SpeedRamp {
     /// The current setpoint, without advancing.
     #[must_use]
     pub fn setpoint(&self) -> Setpoint {
-        self.plan.state_after(self.segment, self.into)
+        match self.plan.segments().get(self.segment) {
+            Some(seg) => seg.state_at(self.into),
+            None => Setpoint::at_target(self.plan.target()),
+        }
     }
 
     /// The current target (after clamping).

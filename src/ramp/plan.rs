@@ -122,6 +122,7 @@ impl Segment {
 
     /// The phase this segment's jerk stands for.
     #[must_use]
+    #[inline]
     pub fn phase(&self) -> RampPhase {
         if self.jerk > 0.0 {
             RampPhase::AccelerationIncreasing
@@ -134,13 +135,37 @@ impl Segment {
 
     /// The state `quanta` after the segment's start (clamped to the segment).
     #[must_use]
+    #[inline]
     pub fn state_at(&self, quanta: u64) -> Setpoint {
-        let x = self.anchor_at(quanta);
+        let (speed, accel) = self.evaluate(quanta);
         Setpoint {
-            speed: AngularSpeed::from_rad_per_s(x.v),
-            acceleration_rad_s2: x.a,
+            speed: AngularSpeed::from_rad_per_s(between(speed, self.start_speed, self.end_speed)),
+            acceleration_rad_s2: between(accel, self.start_accel, self.end_accel),
             jerk_rad_s3: self.jerk,
             phase: self.phase(),
+        }
+    }
+
+    /// Speed and acceleration `quanta` into the segment, unclamped, from the
+    /// nearer anchor: the start in the first half, the end in the second. From
+    /// the end the approach to a target keeps its full relative precision
+    /// (near a stop the speed is `j·τ²/2`, not a difference of larger numbers).
+    #[inline]
+    fn evaluate(&self, quanta: u64) -> (f32, f32) {
+        let q = quanta.min(self.duration_quanta);
+        if q <= self.duration_quanta / 2 {
+            let t = s_from_quanta(q);
+            let a0 = self.start_accel + self.start_accel_lo;
+            (
+                self.start_speed + (self.start_speed_lo + t * (a0 + 0.5 * self.jerk * t)),
+                self.start_accel + (self.start_accel_lo + self.jerk * t),
+            )
+        } else {
+            let tau = s_from_quanta(self.duration_quanta - q);
+            (
+                self.end_speed - tau * (self.end_accel - 0.5 * self.jerk * tau),
+                self.end_accel - self.jerk * tau,
+            )
         }
     }
 
@@ -149,12 +174,26 @@ impl Segment {
     /// error (otherwise a re-plan on every tick would add one rounding per tick,
     /// like summing increments in `f32`).
     pub(crate) fn anchor_at(&self, quanta: u64) -> Anchor {
-        let t = s_from_quanta(quanta.min(self.duration_quanta));
-        let a_inc = self.start_accel_lo + self.jerk * t;
-        let v_inc = self.start_speed_lo
-            + t * ((self.start_accel + self.start_accel_lo) + 0.5 * self.jerk * t);
-        let (v, v_lo) = two_sum(self.start_speed, v_inc);
-        let (a, a_lo) = two_sum(self.start_accel, a_inc);
+        let q = quanta.min(self.duration_quanta);
+        let ((v, v_lo), (a, a_lo)) = if q <= self.duration_quanta / 2 {
+            let t = s_from_quanta(q);
+            let a0 = self.start_accel + self.start_accel_lo;
+            let v_inc = self.start_speed_lo + t * (a0 + 0.5 * self.jerk * t);
+            let a_inc = self.start_accel_lo + self.jerk * t;
+            (
+                two_sum(self.start_speed, v_inc),
+                two_sum(self.start_accel, a_inc),
+            )
+        } else {
+            let tau = s_from_quanta(self.duration_quanta - q);
+            (
+                two_sum(
+                    self.end_speed,
+                    -(tau * (self.end_accel - 0.5 * self.jerk * tau)),
+                ),
+                two_sum(self.end_accel, -(self.jerk * tau)),
+            )
+        };
         let (v, v_lo) = clamp_anchor(v, v_lo, self.start_speed, self.end_speed);
         let (a, a_lo) = clamp_anchor(a, a_lo, self.start_accel, self.end_accel);
         Anchor { v, v_lo, a, a_lo }
@@ -202,6 +241,7 @@ fn clamp_anchor(x: f32, lo: f32, p: f32, q: f32) -> (f32, f32) {
 }
 
 /// `x` limited to the closed interval spanned by `p` and `q` (in either order).
+#[inline]
 fn between(x: f32, p: f32, q: f32) -> f32 {
     x.max(p.min(q)).min(p.max(q))
 }
@@ -272,6 +312,7 @@ impl Plan {
 
     /// The segments, in order (at most [`MAX_SEGMENTS`]).
     #[must_use]
+    #[inline]
     pub fn segments(&self) -> &[Segment] {
         self.segments
             .get(..usize::from(self.len))
@@ -364,9 +405,11 @@ impl Plan {
 
     /// Moves a position (segment `index`, `into` quanta within it) on by
     /// `quanta`; returns the new position. Past the end: `(len, 0)`.
+    #[inline]
     pub(crate) fn advance(&self, mut index: usize, quanta: u64) -> (usize, u64) {
         let mut into = quanta;
-        for seg in self.segments().iter().skip(index) {
+        // At most MAX_SEGMENTS iterations.
+        while let Some(seg) = self.segments().get(index) {
             if into < seg.duration_quanta {
                 return (index, into);
             }
@@ -411,8 +454,7 @@ pub(crate) fn admit_target(reverse: Reverse, vt: f32) -> (f32, bool) {
 
 /// Collects segments; anchors are carried from one segment to the next.
 struct Builder {
-    segments: [Segment; MAX_SEGMENTS],
-    len: usize,
+    plan: Plan,
     v: f32,
     a: f32,
     /// Rounding errors of the start state, carried by the first segment only.
@@ -422,10 +464,10 @@ struct Builder {
 }
 
 impl Builder {
-    fn new(start: Anchor) -> Self {
+    #[inline]
+    fn new(start: Anchor, target: f32) -> Self {
         Self {
-            segments: [Segment::EMPTY; MAX_SEGMENTS],
-            len: 0,
+            plan: Plan::at_rest(target),
             v: start.v,
             a: start.a,
             v_lo: start.v_lo,
@@ -449,7 +491,7 @@ impl Builder {
             return;
         }
         if quanta > 0 {
-            match self.segments.get_mut(self.len) {
+            match self.plan.segments.get_mut(usize::from(self.plan.len)) {
                 Some(slot) => {
                     *slot = Segment {
                         start_speed: self.v,
@@ -462,7 +504,7 @@ impl Builder {
                         end_accel: end_a,
                         duration_quanta: quanta,
                     };
-                    self.len += 1;
+                    self.plan.len += 1;
                 }
                 None => self.overflow = true,
             }
@@ -478,12 +520,26 @@ impl Builder {
         self.push(s * jerk_w, duration_s, s * end_w, s * end_alpha);
     }
 
-    fn finish(self, target: f32) -> Plan {
-        let mut plan = Plan::at_rest(target);
-        plan.segments = self.segments;
-        plan.len = u8::try_from(self.len).unwrap_or(0);
-        plan
+    fn finish(self) -> Plan {
+        self.plan
     }
+}
+
+/// Jerk limit and its reciprocals (planning multiplies instead of divides).
+#[derive(Clone, Copy)]
+struct Kin {
+    j: f32,
+    /// `1 / j`.
+    ij: f32,
+    /// `1 / (2 j)`.
+    hij: f32,
+}
+
+/// An acceleration limit and its reciprocal.
+#[derive(Clone, Copy)]
+struct Lim {
+    max: f32,
+    inv: f32,
 }
 
 /// The three phases of a monotone rising move in mirrored coordinates
@@ -505,45 +561,51 @@ struct ThreePhase {
 
 /// Rising move of `w` from (`w0`, `al0`) to `wt` with acceleration in
 /// `[0, lim]`, `0 <= al0 <= lim`, and no overshoot (`w0 + al0²/2j <= wt`).
-fn three_phase(w0: f32, al0: f32, wt: f32, lim: f32, j: f32) -> ThreePhase {
-    let al0 = al0.max(0.0).min(lim);
+fn three_phase(w0: f32, al0: f32, wt: f32, lim: Lim, k: Kin) -> ThreePhase {
+    let al0 = al0.max(0.0).min(lim.max);
     let dw = (wt - w0).max(0.0);
     // Peak when the limit is not reached: the speed change splits into the
     // rise from al0 to h, (h² - al0²)/2j, and the fall from h to 0, h²/2j.
-    let h = libm::sqrtf(0.5 * al0 * al0 + j * dw);
-    let (t1, t2, peak) = if h <= lim {
-        (((h - al0) / j).max(0.0), 0.0, h)
+    let h = libm::sqrtf(0.5 * al0 * al0 + k.j * dw);
+    let (t1, t2, peak) = if h <= lim.max {
+        (((h - al0) * k.ij).max(0.0), 0.0, h)
     } else {
-        let hold = dw / lim - lim / j + al0 * al0 / (2.0 * lim * j);
-        ((lim - al0) / j, hold.max(0.0), lim)
+        let hold = dw * lim.inv - lim.max * k.ij + al0 * al0 * k.hij * lim.inv;
+        ((lim.max - al0) * k.ij, hold.max(0.0), lim.max)
     };
-    let w2 = between(wt - peak * peak / (2.0 * j), w0, wt);
+    let w2 = between(wt - peak * peak * k.hij, w0, wt);
     let w1 = if t2 > 0.0 {
-        between(w0 + (peak * peak - al0 * al0) / (2.0 * j), w0, w2)
+        between(w0 + (peak * peak - al0 * al0) * k.hij, w0, w2)
     } else {
         w2
     };
     ThreePhase {
         t1,
         t2,
-        t3: peak / j,
+        t3: peak * k.ij,
         peak,
         w1,
         w2,
     }
 }
 
-fn emit_three_phase(b: &mut Builder, s: f32, p: &ThreePhase, wt: f32, j: f32) {
-    b.push_w(s, j, p.t1, p.w1, p.peak);
+fn emit_three_phase(b: &mut Builder, s: f32, p: &ThreePhase, wt: f32, k: Kin) {
+    b.push_w(s, k.j, p.t1, p.w1, p.peak);
     b.push_w(s, 0.0, p.t2, p.w2, p.peak);
-    b.push_w(s, -j, p.t3, wt, 0.0);
+    b.push_w(s, -k.j, p.t3, wt, 0.0);
 }
 
 /// Builds the plan; inputs already checked (finite, in range, policy applied).
 pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f32) -> Plan {
     let (v0, a0) = (start.v, start.a);
-    let j = limits.max_jerk_rad_s3();
-    let mut b = Builder::new(start);
+    let (inv_up, inv_down, ij) = limits.reciprocals();
+    let k = Kin {
+        j: limits.max_jerk_rad_s3(),
+        ij,
+        hij: 0.5 * ij,
+    };
+    let j = k.j;
+    let mut b = Builder::new(start, vt);
     let mut overshoot = false;
     let mut jerk_raised = false;
 
@@ -551,7 +613,7 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
     // strongly that the target would be passed: bring it to zero at once.
     if a0 != 0.0 {
         let dir = a0.signum();
-        let v_stop = v0 + a0 * a0.abs() / (2.0 * j);
+        let v_stop = v0 + a0 * a0.abs() * k.hij;
         if dir * (vt - v_stop) <= 0.0 {
             overshoot = dir * (vt - v0) >= 0.0 && vt != v_stop;
             if reverse == Reverse::Forbidden && v_stop < 0.0 {
@@ -568,7 +630,7 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
                     b.a = 0.0;
                 }
             } else {
-                b.push(-dir * j, a0.abs() / j, v_stop, 0.0);
+                b.push(-dir * j, a0.abs() * k.ij, v_stop, 0.0);
             }
         }
     }
@@ -584,11 +646,11 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
         braked = true;
         let end_a = a.signum() * bound;
         let jerk = -a.signum() * j;
-        let mut end_v = v + (end_a * end_a - a * a) / (2.0 * jerk);
+        let mut end_v = v + a.signum() * (a * a - end_a * end_a) * k.hij;
         if reverse == Reverse::Forbidden {
             end_v = end_v.max(0.0);
         }
-        b.push(jerk, (a.abs() - bound) / j, end_v, end_a);
+        b.push(jerk, (a.abs() - bound) * k.ij, end_v, end_a);
     }
 
     // Step 3: monotone move to the target, in mirrored coordinates w = s·v so
@@ -598,16 +660,22 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
     if v != vt {
         let s = if vt > v { 1.0 } else { -1.0 };
         let (w0, al0, wt) = (s * v, (s * a).max(0.0), s * vt);
-        let up = limits.max_acceleration_rad_s2();
-        let down = limits.max_deceleration_rad_s2();
+        let up = Lim {
+            max: limits.max_acceleration_rad_s2(),
+            inv: inv_up,
+        };
+        let down = Lim {
+            max: limits.max_deceleration_rad_s2(),
+            inv: inv_down,
+        };
         if w0 >= 0.0 {
-            let p = three_phase(w0, al0, wt, up, j);
-            emit_three_phase(&mut b, s, &p, wt, j);
+            let p = three_phase(w0, al0, wt, up, k);
+            emit_three_phase(&mut b, s, &p, wt, k);
         } else if wt <= 0.0 {
-            let p = three_phase(w0, al0, wt, down, j);
-            emit_three_phase(&mut b, s, &p, wt, j);
+            let p = three_phase(w0, al0, wt, down, k);
+            emit_three_phase(&mut b, s, &p, wt, k);
         } else {
-            crossing(&mut b, s, w0, al0, wt, down, up, j);
+            crossing(&mut b, s, w0, al0, wt, down, up, k);
         }
     }
 
@@ -616,7 +684,7 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
         // never worse than the limits allow.
         conservative(limits, start, vt)
     } else {
-        b.finish(vt)
+        b.finish()
     };
     plan.overshoot = overshoot;
     plan.braked = braked;
@@ -628,110 +696,125 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
 /// while `w < 0` and `post` after; `0 <= al0 <= pre`. Chooses, in closed form,
 /// the time-optimal one of the crossing profiles derived in `docs/ramp.md`.
 #[allow(clippy::too_many_arguments)]
-fn crossing(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, pre: f32, post: f32, j: f32) {
+fn crossing(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post: Lim, k: Kin) {
     // Acceleration at the crossing if it kept rising at +j from the start.
-    let al_c = libm::sqrtf(al0 * al0 - 2.0 * j * w0);
-    if post >= pre {
+    let al_c = libm::sqrtf(al0 * al0 - 2.0 * k.j * w0);
+    if post.max >= pre.max {
         // (a) The profile under the looser limit everywhere stays within `pre`
         // before the crossing.
-        let loose = three_phase(w0, al0, wt, post, j);
-        if loose.peak <= pre || al_c <= pre {
-            emit_three_phase(b, s, &loose, wt, j);
+        let loose = three_phase(w0, al0, wt, post, k);
+        if loose.peak <= pre.max || al_c <= pre.max {
+            emit_three_phase(b, s, &loose, wt, k);
             return;
         }
         // (b) Under `pre` everywhere, the crossing falls in the final ramp.
-        let tight = three_phase(w0, al0, wt, pre, j);
-        if wt <= tight.peak * tight.peak / (2.0 * j) {
-            emit_three_phase(b, s, &tight, wt, j);
+        let tight = three_phase(w0, al0, wt, pre, k);
+        if wt <= tight.peak * tight.peak * k.hij {
+            emit_three_phase(b, s, &tight, wt, k);
             return;
         }
         // (c) Rise to `pre`, hold it until zero speed, then continue from
         // (0, pre) under `post`.
-        let w_r = (w0 + (pre * pre - al0 * al0) / (2.0 * j)).min(0.0);
-        b.push_w(s, j, (pre - al0) / j, w_r, pre);
-        b.push_w(s, 0.0, -w_r / pre, 0.0, pre);
-        let rest = three_phase(0.0, pre, wt, post, j);
-        emit_three_phase(b, s, &rest, wt, j);
+        let w_r = (w0 + (pre.max * pre.max - al0 * al0) * k.hij).min(0.0);
+        b.push_w(s, k.j, (pre.max - al0) * k.ij, w_r, pre.max);
+        b.push_w(s, 0.0, -w_r * pre.inv, 0.0, pre.max);
+        let rest = three_phase(0.0, pre.max, wt, post, k);
+        emit_three_phase(b, s, &rest, wt, k);
     } else {
         // (a') Under `pre` everywhere the acceleration after the crossing stays
         // within `post`.
-        let loose = three_phase(w0, al0, wt, pre, j);
-        if loose.peak <= post || wt <= post * post / (2.0 * j) {
-            emit_three_phase(b, s, &loose, wt, j);
+        let loose = three_phase(w0, al0, wt, pre, k);
+        if loose.peak <= post.max || wt <= post.max * post.max * k.hij {
+            emit_three_phase(b, s, &loose, wt, k);
             return;
         }
         // (b') Under `post` everywhere, the crossing falls in the first ramp.
-        if al0 <= post {
-            let tight = three_phase(w0, al0, wt, post, j);
+        if al0 <= post.max {
+            let tight = three_phase(w0, al0, wt, post, k);
             if al_c <= tight.peak {
-                emit_three_phase(b, s, &tight, wt, j);
+                emit_three_phase(b, s, &tight, wt, k);
                 return;
             }
         }
         // (c') Reach the crossing with acceleration exactly `post` (rise, hold
         // at `pre`, fall to `post`), hold `post`, fall to zero.
+        let q = post.max;
         let dw = -w0;
-        let h = libm::sqrtf(0.5 * (al0 * al0 + post * post) + j * dw);
-        if h < al0 || h < post {
+        let h = libm::sqrtf(0.5 * (al0 * al0 + q * q) + k.j * dw);
+        if h < al0 || h < q {
             // The acceleration cannot come down to `post` before zero speed:
             // the excess is forced by the initial state.
-            fallback(b, s, w0, al0, wt, post, j);
+            fallback(b, s, w0, al0, wt, post, k);
             return;
         }
-        let (t1, t2, peak) = if h <= pre {
-            ((h - al0) / j, 0.0, h)
+        let (t1, t2, peak) = if h <= pre.max {
+            ((h - al0) * k.ij, 0.0, h)
         } else {
-            let hold = (al0 * al0 + post * post) / (2.0 * pre * j) - pre / j + dw / pre;
-            ((pre - al0) / j, hold.max(0.0), pre)
+            let hold =
+                (al0 * al0 + q * q) * k.hij * pre.inv - pre.max * k.ij + dw * pre.inv;
+            ((pre.max - al0) * k.ij, hold.max(0.0), pre.max)
         };
-        let w2 = between(-(peak * peak - post * post) / (2.0 * j), w0, 0.0);
+        let w2 = between(-(peak * peak - q * q) * k.hij, w0, 0.0);
         let w1 = if t2 > 0.0 {
-            between(w0 + (peak * peak - al0 * al0) / (2.0 * j), w0, w2)
+            between(w0 + (peak * peak - al0 * al0) * k.hij, w0, w2)
         } else {
             w2
         };
-        b.push_w(s, j, t1, w1, peak);
+        b.push_w(s, k.j, t1, w1, peak);
         b.push_w(s, 0.0, t2, w2, peak);
-        b.push_w(s, -j, (peak - post) / j, 0.0, post);
-        let w3 = (wt - post * post / (2.0 * j)).max(0.0);
-        b.push_w(s, 0.0, w3 / post, w3, post);
-        b.push_w(s, -j, post / j, wt, 0.0);
+        b.push_w(s, -k.j, (peak - q) * k.ij, 0.0, q);
+        let w3 = (wt - q * q * k.hij).max(0.0);
+        b.push_w(s, 0.0, w3 * post.inv, w3, q);
+        b.push_w(s, -k.j, q * k.ij, wt, 0.0);
     }
 }
 
 /// Brake to `m` (the smaller limit) at maximum jerk if above it, then the
 /// three-phase move under `m`.
-fn fallback(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, m: f32, j: f32) {
+fn fallback(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, m: Lim, k: Kin) {
     let mut w = w0;
     let mut al = al0;
-    if al0 > m {
-        w = (w0 + (al0 * al0 - m * m) / (2.0 * j)).min(wt);
-        b.push_w(s, -j, (al0 - m) / j, w, m);
-        al = m;
+    if al0 > m.max {
+        w = (w0 + (al0 * al0 - m.max * m.max) * k.hij).min(wt);
+        b.push_w(s, -k.j, (al0 - m.max) * k.ij, w, m.max);
+        al = m.max;
     }
-    let p = three_phase(w, al, wt, m, j);
-    emit_three_phase(b, s, &p, wt, j);
+    let p = three_phase(w, al, wt, m, k);
+    emit_three_phase(b, s, &p, wt, k);
 }
 
 /// A plan that respects the smaller of the two limits throughout (used only if
 /// the time-optimal construction ever needed more than [`MAX_SEGMENTS`]).
 fn conservative(limits: &RampLimits, start: Anchor, vt: f32) -> Plan {
     let (v0, a0) = (start.v, start.a);
-    let j = limits.max_jerk_rad_s3();
-    let m = limits
-        .max_acceleration_rad_s2()
-        .min(limits.max_deceleration_rad_s2());
-    let mut b = Builder::new(start);
+    let (inv_up, inv_down, ij) = limits.reciprocals();
+    let k = Kin {
+        j: limits.max_jerk_rad_s3(),
+        ij,
+        hij: 0.5 * ij,
+    };
+    let m = if limits.max_acceleration_rad_s2() <= limits.max_deceleration_rad_s2() {
+        Lim {
+            max: limits.max_acceleration_rad_s2(),
+            inv: inv_up,
+        }
+    } else {
+        Lim {
+            max: limits.max_deceleration_rad_s2(),
+            inv: inv_down,
+        }
+    };
+    let mut b = Builder::new(start, vt);
     if a0 != 0.0 {
-        let v_stop = v0 + a0 * a0.abs() / (2.0 * j);
-        b.push(-a0.signum() * j, a0.abs() / j, v_stop, 0.0);
+        let v_stop = v0 + a0 * a0.abs() * k.hij;
+        b.push(-a0.signum() * k.j, a0.abs() * k.ij, v_stop, 0.0);
     }
     if b.v != vt {
         let s = if vt > b.v { 1.0 } else { -1.0 };
-        let p = three_phase(s * b.v, 0.0, s * vt, m, j);
-        emit_three_phase(&mut b, s, &p, s * vt, j);
+        let p = three_phase(s * b.v, 0.0, s * vt, m, k);
+        emit_three_phase(&mut b, s, &p, s * vt, k);
     }
-    b.finish(vt)
+    b.finish()
 }
 
 #[cfg(test)]
