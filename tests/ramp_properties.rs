@@ -55,8 +55,14 @@ impl Checker {
             self.limits.bound_for(v, a)
         };
         assert!(a.abs() <= bound * (1.0 + 1e-5), "|a| = {a} above {bound} at v = {v}");
-        // Jerk: |Δa| ≤ j·dt, plus a few f32 roundings of the acceleration.
+        // Continuity of the speed: |Δv| ≤ (max |a| at the ends + j·dt)·dt (a
+        // is piecewise linear; inside one tick it can exceed its end values by
+        // at most j·dt/2), plus a few f32 roundings of the speed.
         let j = self.limits.max_jerk_rad_s3();
+        let dv = (v - prev.0).abs();
+        let dv_max = (a.abs().max(prev.1.abs()) + j * dt) * dt + 4.0 * f32::EPSILON * self.range;
+        assert!(dv <= dv_max, "speed step {dv} above {dv_max}");
+        // Jerk: |Δa| ≤ j·dt, plus a few f32 roundings of the acceleration.
         let da = (a - prev.1).abs();
         let a_scale = self
             .limits
@@ -154,7 +160,14 @@ proptest! {
             if reverse == Reverse::Forbidden {
                 prop_assert!(v >= 0.0);
             }
-            let da = (s.acceleration_rad_s2 - prev.acceleration_rad_s2).abs();
+            let (a, a_prev) = (s.acceleration_rad_s2, prev.acceleration_rad_s2);
+            let dv = (v - prev.speed.rad_per_s()).abs();
+            let jerk_now = if raised { jerk.max(new_jerk) } else { new_jerk };
+            prop_assert!(
+                dv <= (a.abs().max(a_prev.abs()) + jerk_now * dt) * dt + 1e-4,
+                "speed step {dv}"
+            );
+            let da = (a - a_prev).abs();
             if !raised {
                 prop_assert!(da <= new_jerk * dt * (1.0 + 1e-4) + 1e-5);
             }
