@@ -24,7 +24,10 @@ pub const SECONDS_PER_QUANTUM: f32 = 1.0 / QUANTA_PER_SECOND;
 #[must_use]
 #[inline]
 pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
-    (seconds * QUANTA_PER_SECOND + 0.5) as u64
+    // Through i64: one conversion instruction on common targets; the values
+    // used stay far below 2⁶³ (2²⁷ s), and negatives are cut to 0.
+    let q = (seconds * QUANTA_PER_SECOND + 0.5) as i64;
+    q.max(0) as u64
 }
 
 /// Quanta to seconds (rounded to `f32`, relative error ≤ 2⁻²⁴; used only for
@@ -32,7 +35,9 @@ pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
 #[must_use]
 #[inline]
 pub(crate) fn s_from_quanta(quanta: u64) -> f32 {
-    quanta as f32 * SECONDS_PER_QUANTUM
+    // Through i64 for the same reason; larger values saturate at 2⁶³ quanta.
+    let q = i64::try_from(quanta).unwrap_or(i64::MAX);
+    q as f32 * SECONDS_PER_QUANTUM
 }
 
 #[cfg(test)]

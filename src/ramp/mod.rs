@@ -142,8 +142,14 @@ impl SpeedRamp {
     /// [`ParamError`] naming `dt_s` when NaN, infinite, not positive or above
     /// [`MAX_TICK_S`]. The ramp then does not advance: its state is unchanged
     /// and [`SpeedRamp::setpoint`] still returns the previous setpoint.
+    #[inline]
     pub fn step(&mut self, dt_s: f32) -> Result<Setpoint, ParamError> {
-        let quanta = checked_period("dt_s", dt_s, Zero::Refused, 0.0, MAX_TICK_S)?;
+        // One comparison pair on the per-tick path (false for NaN too); the
+        // error is classified off it.
+        if !(dt_s > 0.0 && dt_s <= MAX_TICK_S) {
+            return Err(refused_tick(dt_s));
+        }
+        let quanta = quanta_from_s(dt_s);
         let (segment, into) = self
             .plan
             .advance(self.segment, self.into.saturating_add(quanta));
@@ -154,6 +160,7 @@ impl SpeedRamp {
 
     /// The current setpoint, without advancing.
     #[must_use]
+    #[inline]
     pub fn setpoint(&self) -> Setpoint {
         match self.plan.segments().get(self.segment) {
             Some(seg) => seg.state_at(self.into),
@@ -225,12 +232,7 @@ impl SpeedRamp {
         }
         let m = if m == 0.0 { 0.0 } else { m };
         let target = self.plan.target().rad_per_s();
-        self.start(build(
-            &self.limits,
-            self.reverse,
-            Anchor::exact(m, 0.0),
-            target,
-        ));
+        self.start(Anchor::exact(m, 0.0), target);
         Ok(self.setpoint())
     }
 
@@ -300,14 +302,23 @@ impl SpeedRamp {
 
     fn replan(&mut self, target: f32) {
         let now = self.plan.anchor_after(self.segment, self.into);
-        let plan = build(&self.limits, self.reverse, now, target);
-        self.start(plan);
+        self.start(now, target);
     }
 
-    fn start(&mut self, plan: Plan) {
-        self.plan = plan;
+    /// Plans in place from `from` to `target` and starts at its beginning.
+    fn start(&mut self, from: Anchor, target: f32) {
+        build(&mut self.plan, &self.limits, self.reverse, from, target);
         self.segment = 0;
         self.into = 0;
+    }
+}
+
+/// Why a tick period was refused.
+#[cold]
+fn refused_tick(dt_s: f32) -> ParamError {
+    match checked_period("dt_s", dt_s, Zero::Refused, 0.0, MAX_TICK_S) {
+        Err(e) => e,
+        Ok(_) => ParamError::OutOfRange("dt_s"),
     }
 }
 

@@ -52,14 +52,8 @@ const JERK_ROUNDING: f32 = 1.0e-4;
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Segment {
     start_speed: f32,
-    /// Low-order part of the start speed: the rounding error of `start_speed`
-    /// when the segment was anchored at an evaluated state (re-plan), else 0.
-    start_speed_lo: f32,
     start_accel: f32,
-    /// Low-order part of the start acceleration, as `start_speed_lo`.
-    start_accel_lo: f32,
     jerk: f32,
-    duration_s: f32,
     end_speed: f32,
     end_accel: f32,
     duration_quanta: u64,
@@ -68,11 +62,8 @@ pub struct Segment {
 impl Segment {
     const EMPTY: Self = Self {
         start_speed: 0.0,
-        start_speed_lo: 0.0,
         start_accel: 0.0,
-        start_accel_lo: 0.0,
         jerk: 0.0,
-        duration_s: 0.0,
         end_speed: 0.0,
         end_accel: 0.0,
         duration_quanta: 0,
@@ -96,10 +87,10 @@ impl Segment {
         self.jerk
     }
 
-    /// Duration, s.
+    /// Duration, s (rounded to `f32` from the exact [`Segment::duration_quanta`]).
     #[must_use]
-    pub const fn duration_s(&self) -> f32 {
-        self.duration_s
+    pub fn duration_s(&self) -> f32 {
+        s_from_quanta(self.duration_quanta)
     }
 
     /// Duration in time quanta of 2⁻³⁶ s (see [`QUANTA_PER_SECOND`](crate::ramp::QUANTA_PER_SECOND)).
@@ -155,10 +146,9 @@ impl Segment {
         let q = quanta.min(self.duration_quanta);
         if q <= self.duration_quanta / 2 {
             let t = s_from_quanta(q);
-            let a0 = self.start_accel + self.start_accel_lo;
             (
-                self.start_speed + (self.start_speed_lo + t * (a0 + 0.5 * self.jerk * t)),
-                self.start_accel + (self.start_accel_lo + self.jerk * t),
+                self.start_speed + t * (self.start_accel + 0.5 * self.jerk * t),
+                self.start_accel + self.jerk * t,
             )
         } else {
             let tau = s_from_quanta(self.duration_quanta - q);
@@ -172,14 +162,15 @@ impl Segment {
     /// The state `quanta` after the segment's start as rounded value plus
     /// rounding error, so that a re-plan can anchor at it without losing the
     /// error (otherwise a re-plan on every tick would add one rounding per tick,
-    /// like summing increments in `f32`).
-    pub(crate) fn anchor_at(&self, quanta: u64) -> Anchor {
+    /// like summing increments in `f32`). `lo` is the rounding error of the
+    /// segment's own start anchor (nonzero only for a plan's first segment).
+    fn anchor_at(&self, quanta: u64, lo: (f32, f32)) -> Anchor {
         let q = quanta.min(self.duration_quanta);
         let ((v, v_lo), (a, a_lo)) = if q <= self.duration_quanta / 2 {
             let t = s_from_quanta(q);
-            let a0 = self.start_accel + self.start_accel_lo;
-            let v_inc = self.start_speed_lo + t * (a0 + 0.5 * self.jerk * t);
-            let a_inc = self.start_accel_lo + self.jerk * t;
+            let a0 = self.start_accel + lo.1;
+            let v_inc = lo.0 + t * (a0 + 0.5 * self.jerk * t);
+            let a_inc = lo.1 + self.jerk * t;
             (
                 two_sum(self.start_speed, v_inc),
                 two_sum(self.start_accel, a_inc),
@@ -247,10 +238,16 @@ fn between(x: f32, p: f32, q: f32) -> f32 {
 }
 
 /// A complete plan from a start state to a target, in closed form.
-#[derive(Debug, Clone, Copy, PartialEq)]
+///
+/// Equality compares the segments in use and the flags (storage beyond the
+/// last segment is not part of the plan).
+#[derive(Debug, Clone, Copy)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Plan {
     segments: [Segment; MAX_SEGMENTS],
+    /// Rounding errors (speed, acceleration) of the first segment's start
+    /// anchor when the plan starts from an evaluated state (re-plan), else 0.
+    start_lo: (f32, f32),
     len: u8,
     target: f32,
     target_clamped: bool,
@@ -259,12 +256,25 @@ pub struct Plan {
     jerk_raised: bool,
 }
 
+impl PartialEq for Plan {
+    fn eq(&self, other: &Self) -> bool {
+        self.segments() == other.segments()
+            && self.start_lo == other.start_lo
+            && self.target.to_bits() == other.target.to_bits()
+            && self.target_clamped == other.target_clamped
+            && self.overshoot == other.overshoot
+            && self.braked == other.braked
+            && self.jerk_raised == other.jerk_raised
+    }
+}
+
 impl Plan {
     /// A plan that is already complete: standing at `target`.
     #[must_use]
     pub(crate) const fn at_rest(target: f32) -> Self {
         Self {
             segments: [Segment::EMPTY; MAX_SEGMENTS],
+            start_lo: (0.0, 0.0),
             len: 0,
             target,
             target_clamped: false,
@@ -305,9 +315,52 @@ impl Plan {
             return Err(ParamError::OutOfRange("acceleration"));
         }
         let (vt, clamped) = admit_target(reverse, check_speed("target", target.rad_per_s())?);
-        let mut plan = build(limits, reverse, Anchor::exact(v0, a0), vt);
+        let mut plan = Self::at_rest(vt);
+        build(&mut plan, limits, reverse, Anchor::exact(v0, a0), vt);
         plan.target_clamped = clamped;
         Ok(plan)
+    }
+
+    /// As [`Plan::new`], but re-planning this plan in place (for a plan kept in
+    /// static memory: no copy of the segment array).
+    ///
+    /// # Errors
+    /// As [`Plan::new`]; the plan is then unchanged.
+    pub fn replan(
+        &mut self,
+        limits: &RampLimits,
+        reverse: Reverse,
+        speed: AngularSpeed,
+        acceleration_rad_s2: f32,
+        target: AngularSpeed,
+    ) -> Result<(), ParamError> {
+        let v0 = check_speed("speed", speed.rad_per_s())?;
+        if reverse == Reverse::Forbidden && v0 < 0.0 {
+            return Err(ParamError::Negative("speed"));
+        }
+        let a0 = acceleration_rad_s2;
+        if !a0.is_finite() {
+            return Err(ParamError::NonFinite("acceleration"));
+        }
+        if a0.abs() > MAX_INITIAL_ACCELERATION_RAD_S2 {
+            return Err(ParamError::OutOfRange("acceleration"));
+        }
+        let (vt, clamped) = admit_target(reverse, check_speed("target", target.rad_per_s())?);
+        build(self, limits, reverse, Anchor::exact(v0, a0), vt);
+        self.target_clamped = clamped;
+        Ok(())
+    }
+
+    /// Empties the plan for a new build toward `target` (the segment storage
+    /// is left as it is: only `len` segments are ever read).
+    fn reset(&mut self, target: f32) {
+        self.start_lo = (0.0, 0.0);
+        self.len = 0;
+        self.target = target;
+        self.target_clamped = false;
+        self.overshoot = false;
+        self.braked = false;
+        self.jerk_raised = false;
     }
 
     /// The segments, in order (at most [`MAX_SEGMENTS`]).
@@ -397,8 +450,13 @@ impl Plan {
     /// Like [`Plan::state_after`], with rounding errors kept (for re-planning).
     pub(crate) fn anchor_after(&self, index: usize, quanta: u64) -> Anchor {
         let (index, into) = self.advance(index, quanta);
+        let lo = if index == 0 {
+            self.start_lo
+        } else {
+            (0.0, 0.0)
+        };
         match self.segments().get(index) {
-            Some(seg) => seg.anchor_at(into),
+            Some(seg) => seg.anchor_at(into, lo),
             None => Anchor::exact(self.target, 0.0),
         }
     }
@@ -452,26 +510,25 @@ pub(crate) fn admit_target(reverse: Reverse, vt: f32) -> (f32, bool) {
     }
 }
 
-/// Collects segments; anchors are carried from one segment to the next.
-struct Builder {
-    plan: Plan,
+/// Collects segments into a plan; anchors are carried from one segment to the
+/// next.
+struct Builder<'p> {
+    plan: &'p mut Plan,
     v: f32,
     a: f32,
-    /// Rounding errors of the start state, carried by the first segment only.
-    v_lo: f32,
-    a_lo: f32,
     overflow: bool,
 }
 
-impl Builder {
+impl<'p> Builder<'p> {
     #[inline]
-    fn new(start: Anchor, target: f32) -> Self {
+    fn new(plan: &'p mut Plan, start: Anchor, target: f32) -> Self {
+        plan.reset(target);
+        // The start state's rounding errors belong to the first segment.
+        plan.start_lo = (start.v_lo, start.a_lo);
         Self {
-            plan: Plan::at_rest(target),
+            plan,
             v: start.v,
             a: start.a,
-            v_lo: start.v_lo,
-            a_lo: start.a_lo,
             overflow: false,
         }
     }
@@ -479,49 +536,38 @@ impl Builder {
     /// Appends a segment from the current anchor with `jerk` for `duration_s`
     /// ending at (`end_v`, `end_a`), which become the next anchor. Segments
     /// shorter than one time quantum are dropped (the anchor still moves on).
+    #[inline]
     fn push(&mut self, jerk: f32, duration_s: f32, end_v: f32, end_a: f32) {
-        let quanta = if duration_s.is_finite() && duration_s > 0.0 {
-            quanta_from_s(duration_s)
-        } else {
-            0
-        };
-        if quanta == 0 && end_v == self.v && end_a == self.a {
-            // An empty phase that leaves the state as it is: the start state's
-            // rounding errors stay with the next segment.
-            return;
-        }
-        if quanta > 0 {
-            match self.plan.segments.get_mut(usize::from(self.plan.len)) {
-                Some(slot) => {
-                    *slot = Segment {
-                        start_speed: self.v,
-                        start_speed_lo: self.v_lo,
-                        start_accel: self.a,
-                        start_accel_lo: self.a_lo,
-                        jerk,
-                        duration_s,
-                        end_speed: end_v,
-                        end_accel: end_a,
-                        duration_quanta: quanta,
-                    };
-                    self.plan.len += 1;
-                }
-                None => self.overflow = true,
+        // NaN, negative and infinite durations give 0 or saturate; none
+        // arises from the closed forms, whose inputs are checked.
+        let quanta = quanta_from_s(duration_s);
+        if quanta == 0 {
+            // An empty phase. If it moves the anchor before any segment was
+            // stored, the start state's rounding errors no longer apply.
+            if self.plan.len == 0 && (end_v != self.v || end_a != self.a) {
+                self.plan.start_lo = (0.0, 0.0);
             }
+        } else if let Some(slot) = self.plan.segments.get_mut(usize::from(self.plan.len)) {
+            *slot = Segment {
+                start_speed: self.v,
+                start_accel: self.a,
+                jerk,
+                end_speed: end_v,
+                end_accel: end_a,
+                duration_quanta: quanta,
+            };
+            self.plan.len += 1;
+        } else {
+            self.overflow = true;
         }
         self.v = end_v;
         self.a = end_a;
-        self.v_lo = 0.0;
-        self.a_lo = 0.0;
     }
 
     /// [`Builder::push`] in mirrored coordinates `w = s·v` (`s` = ±1).
+    #[inline]
     fn push_w(&mut self, s: f32, jerk_w: f32, duration_s: f32, end_w: f32, end_alpha: f32) {
         self.push(s * jerk_w, duration_s, s * end_w, s * end_alpha);
-    }
-
-    fn finish(self) -> Plan {
-        self.plan
     }
 }
 
@@ -589,14 +635,15 @@ fn three_phase(w0: f32, al0: f32, wt: f32, lim: Lim, k: Kin) -> ThreePhase {
     }
 }
 
-fn emit_three_phase(b: &mut Builder, s: f32, p: &ThreePhase, wt: f32, k: Kin) {
+fn emit_three_phase(b: &mut Builder<'_>, s: f32, p: &ThreePhase, wt: f32, k: Kin) {
     b.push_w(s, k.j, p.t1, p.w1, p.peak);
     b.push_w(s, 0.0, p.t2, p.w2, p.peak);
     b.push_w(s, -k.j, p.t3, wt, 0.0);
 }
 
-/// Builds the plan; inputs already checked (finite, in range, policy applied).
-pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f32) -> Plan {
+/// Builds the plan into `plan`; inputs already checked (finite, in range,
+/// policy applied).
+pub(crate) fn build(plan: &mut Plan, limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f32) {
     let (v0, a0) = (start.v, start.a);
     let (inv_up, inv_down, ij) = limits.reciprocals();
     let k = Kin {
@@ -605,7 +652,7 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
         hij: 0.5 * ij,
     };
     let j = k.j;
-    let mut b = Builder::new(start, vt);
+    let mut b = Builder::new(plan, start, vt);
     let mut overshoot = false;
     let mut jerk_raised = false;
 
@@ -626,8 +673,7 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
                     b.push(jj, -a0 / jj, 0.0, 0.0);
                 } else {
                     jerk_raised = true;
-                    b.v = 0.0;
-                    b.a = 0.0;
+                    b.push(0.0, 0.0, 0.0, 0.0);
                 }
             } else {
                 b.push(-dir * j, a0.abs() * k.ij, v_stop, 0.0);
@@ -679,24 +725,21 @@ pub(crate) fn build(limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f3
         }
     }
 
-    let mut plan = if b.overflow {
+    if b.overflow {
         // Not reachable (see the module docs); kept total with a plan that is
         // never worse than the limits allow.
-        conservative(limits, start, vt)
-    } else {
-        b.finish()
-    };
+        conservative(b.plan, limits, start, vt);
+    }
     plan.overshoot = overshoot;
     plan.braked = braked;
     plan.jerk_raised = jerk_raised;
-    plan
 }
 
 /// Rising move through `w = 0` from `w0 < 0` to `wt > 0`, with limit `pre`
 /// while `w < 0` and `post` after; `0 <= al0 <= pre`. Chooses, in closed form,
 /// the time-optimal one of the crossing profiles derived in `docs/ramp.md`.
 #[allow(clippy::too_many_arguments)]
-fn crossing(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post: Lim, k: Kin) {
+fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post: Lim, k: Kin) {
     // Acceleration at the crossing if it kept rising at +j from the start.
     let al_c = libm::sqrtf(al0 * al0 - 2.0 * k.j * w0);
     if post.max >= pre.max {
@@ -771,7 +814,7 @@ fn crossing(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post:
 
 /// Brake to `m` (the smaller limit) at maximum jerk if above it, then the
 /// three-phase move under `m`.
-fn fallback(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, m: Lim, k: Kin) {
+fn fallback(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, m: Lim, k: Kin) {
     let mut w = w0;
     let mut al = al0;
     if al0 > m.max {
@@ -785,7 +828,7 @@ fn fallback(b: &mut Builder, s: f32, w0: f32, al0: f32, wt: f32, m: Lim, k: Kin)
 
 /// A plan that respects the smaller of the two limits throughout (used only if
 /// the time-optimal construction ever needed more than [`MAX_SEGMENTS`]).
-fn conservative(limits: &RampLimits, start: Anchor, vt: f32) -> Plan {
+fn conservative(plan: &mut Plan, limits: &RampLimits, start: Anchor, vt: f32) {
     let (v0, a0) = (start.v, start.a);
     let (inv_up, inv_down, ij) = limits.reciprocals();
     let k = Kin {
@@ -804,7 +847,7 @@ fn conservative(limits: &RampLimits, start: Anchor, vt: f32) -> Plan {
             inv: inv_down,
         }
     };
-    let mut b = Builder::new(start, vt);
+    let mut b = Builder::new(plan, start, vt);
     if a0 != 0.0 {
         let v_stop = v0 + a0 * a0.abs() * k.hij;
         b.push(-a0.signum() * k.j, a0.abs() * k.ij, v_stop, 0.0);
@@ -814,7 +857,6 @@ fn conservative(limits: &RampLimits, start: Anchor, vt: f32) -> Plan {
         let p = three_phase(s * b.v, 0.0, s * vt, m, k);
         emit_three_phase(&mut b, s, &p, s * vt, k);
     }
-    b.finish()
 }
 
 #[cfg(test)]
@@ -830,10 +872,11 @@ mod tests {
         // Biagiotti & Melchiorri (2008) §3.4: T = dv/a + a/j when the
         // acceleration limit is reached; T = 2·sqrt(dv/j) when it is not.
         let l = limits(1.0, 1.0, 2.0);
-        let p = build(&l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 4.0);
+        let mut p = Plan::at_rest(0.0);
+        build(&mut p, &l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 4.0);
         assert!((p.duration_s() - (4.0 / 1.0 + 1.0 / 2.0)).abs() < 1e-5);
         assert_eq!(p.segments().len(), 3);
-        let p = build(&l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 0.125);
+        build(&mut p, &l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 0.125);
         assert!((p.duration_s() - 2.0 * (0.125_f32 / 2.0).sqrt()).abs() < 1e-6);
         assert_eq!(p.segments().len(), 2);
     }
@@ -851,7 +894,8 @@ mod tests {
             (limits(0.5, 1.0, 1.0), 5.0, -3.0, -8.0),
         ];
         for (l, v0, a0, vt) in cases {
-            let p = build(&l, Reverse::Allowed, Anchor::exact(v0, a0), vt);
+            let mut p = Plan::at_rest(0.0);
+            build(&mut p, &l, Reverse::Allowed, Anchor::exact(v0, a0), vt);
             assert!(p.segments().len() <= MAX_SEGMENTS);
             let end = p.state_after(0, u64::MAX);
             assert_eq!(end.speed.rad_per_s(), vt);
