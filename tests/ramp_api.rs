@@ -1,5 +1,10 @@
 //! The ramp's interface: refused inputs, reverse policy, re-seeding, queries.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 use swingdrive::ramp::{ReseedError, ReseedReason, Samples, MAX_SEGMENTS};
 use swingdrive::{
@@ -56,11 +61,23 @@ fn bad_targets_and_ticks_are_refused_by_name_and_change_nothing() {
         Err(ParamError::NotPositive("period_s"))
     );
     assert_eq!(
-        Plan::new(&r.limits(), Reverse::Forbidden, rad_s(-1.0), 0.0, rad_s(1.0)),
+        Plan::new(
+            &r.limits(),
+            Reverse::Forbidden,
+            rad_s(-1.0),
+            0.0,
+            rad_s(1.0)
+        ),
         Err(ParamError::Negative("speed"))
     );
     assert_eq!(
-        Plan::new(&r.limits(), Reverse::Allowed, rad_s(0.0), f32::NAN, rad_s(1.0)),
+        Plan::new(
+            &r.limits(),
+            Reverse::Allowed,
+            rad_s(0.0),
+            f32::NAN,
+            rad_s(1.0)
+        ),
         Err(ParamError::NonFinite("acceleration"))
     );
 }
@@ -89,7 +106,10 @@ fn reseed_only_lowers_the_speed_magnitude() {
     let before = r.clone();
     let why = ReseedReason::CoastingTakeover;
     assert_eq!(r.reseed(rad_s(4.5), why), Err(ReseedError::Faster));
-    assert_eq!(r.reseed(rad_s(-1.0), why), Err(ReseedError::OppositeDirection));
+    assert_eq!(
+        r.reseed(rad_s(-1.0), why),
+        Err(ReseedError::OppositeDirection)
+    );
     assert_eq!(r.reseed(rad_s(f32::NAN), why), Err(ReseedError::NonFinite));
     assert_eq!(r, before);
     // Lower, same direction: the ramp takes the measured speed with zero
@@ -215,7 +235,12 @@ fn a_lower_jerk_near_standstill_stops_at_zero_and_says_so() {
 fn plans_never_need_more_segments_than_the_capacity() {
     // Hand-picked worst cases: a prefix segment followed by a five-segment
     // crossing; checked over a grid of starts as well.
-    let limit_sets = [(0.5, 1.0, 1.0), (1.0, 0.5, 1.0), (0.3, 2.0, 5.0), (2.0, 0.3, 0.2)];
+    let limit_sets = [
+        (0.5, 1.0, 1.0),
+        (1.0, 0.5, 1.0),
+        (0.3, 2.0, 5.0),
+        (2.0, 0.3, 0.2),
+    ];
     let mut most = 0;
     for (up, down, j) in limit_sets {
         let l = RampLimits::new(up, down, j).unwrap();

@@ -1,6 +1,11 @@
 //! Closed-form durations of the speed ramp, checked against the textbook and
 //! against hand calculations (each check names its source).
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 use swingdrive::reference::ramp as reference;
 use swingdrive::{AngularSpeed, Plan, RampLimits, Reverse};
@@ -51,7 +56,10 @@ fn rest_to_rest_acceleration_limit_reached() {
     assert_duration(&plan(1.0, 1.0, 2.0, Reverse::Forbidden, 0.0, 0.0, 4.0), 4.5);
     // Same formula on the way down, with the deceleration limit:
     // 4/0.5 + 0.5/2 = 8.25 s (hand calculation, common practice).
-    assert_duration(&plan(1.0, 0.5, 2.0, Reverse::Forbidden, 4.0, 0.0, 0.0), 8.25);
+    assert_duration(
+        &plan(1.0, 0.5, 2.0, Reverse::Forbidden, 4.0, 0.0, 0.0),
+        8.25,
+    );
     // And in reverse, where a positive acceleration lowers |v|: from -4 to 0
     // the deceleration limit applies again, 8.25 s (hand calculation).
     assert_duration(&plan(1.0, 0.5, 2.0, Reverse::Allowed, -4.0, 0.0, 0.0), 8.25);

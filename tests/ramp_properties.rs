@@ -1,7 +1,12 @@
 //! Property tests of the online speed ramp: limits at every tick, no passing of
 //! a target approached monotonically, exact landing, no NaN; random target
 //! changes every few ticks and jittered tick periods.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 use proptest::prelude::*;
 use swingdrive::{AngularSpeed, RampLimits, RampPhase, Reverse, SpeedRamp};
@@ -54,7 +59,10 @@ impl Checker {
         } else {
             self.limits.bound_for(v, a)
         };
-        assert!(a.abs() <= bound * (1.0 + 1e-5), "|a| = {a} above {bound} at v = {v}");
+        assert!(
+            a.abs() <= bound * (1.0 + 1e-5),
+            "|a| = {a} above {bound} at v = {v}"
+        );
         // Continuity of the speed: |Δv| ≤ (max |a| at the ends + j·dt)·dt (a
         // is piecewise linear; inside one tick it can exceed its end values by
         // at most j·dt/2), plus a few f32 roundings of the speed.

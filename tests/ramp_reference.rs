@@ -5,7 +5,12 @@
 //! code by a closed-form case analysis, the reference by numerically minimising
 //! the total time over the acceleration at the crossing. Agreement of the speed
 //! trajectories therefore checks that the case analysis is time-optimal.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 use proptest::prelude::RngExt;
 use proptest::test_runner::{RngAlgorithm, TestRng};

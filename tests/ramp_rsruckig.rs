@@ -7,10 +7,15 @@
 //! `max_acceleration`), not by whether the speed's magnitude rises or falls, so
 //! the cases use equal acceleration and deceleration limits, where the two
 //! notions agree.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
-use proptest::test_runner::{RngAlgorithm, TestRng};
 use proptest::prelude::RngExt;
+use proptest::test_runner::{RngAlgorithm, TestRng};
 use rsruckig::prelude::*;
 use swingdrive::reference::ramp as reference;
 use swingdrive::{AngularSpeed, Plan, RampLimits, Reverse};

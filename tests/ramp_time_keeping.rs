@@ -1,5 +1,10 @@
 //! Long rides at fast ticks: the f32 ramp must not drift from the f64 reference.
-#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic, clippy::indexing_slicing)]
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    clippy::panic,
+    clippy::indexing_slicing
+)]
 
 use proptest::prelude::RngExt;
 use proptest::test_runner::{RngAlgorithm, TestRng};
@@ -73,7 +78,9 @@ fn two_minutes_at_one_kilohertz_do_not_drift() {
 fn jittered_ticks_do_not_drift() {
     // Demo data: tick periods drawn uniformly from 0.5 ms to 1.5 ms.
     let mut rng = TestRng::deterministic_rng(RngAlgorithm::ChaCha);
-    let periods: Vec<f32> = (0..120_000).map(|_| rng.random_range(0.5e-3..1.5e-3)).collect();
+    let periods: Vec<f32> = (0..120_000)
+        .map(|_| rng.random_range(0.5e-3..1.5e-3))
+        .collect();
     let mut ramp = ramp();
     let worst = run(&mut ramp, periods.into_iter());
     // Same tolerance as above: periods ≥ 2⁻¹³ s convert to time quanta exactly,
@@ -91,12 +98,16 @@ fn re_planning_every_tick_follows_the_same_trajectory() {
     let limits = RampLimits::new(0.4, 0.6, 0.5).unwrap();
     let mut steady = SpeedRamp::new(limits, Reverse::Forbidden);
     let mut busy = SpeedRamp::new(limits, Reverse::Forbidden);
-    let _ = steady.set_target(AngularSpeed::from_rad_per_s(3.0)).unwrap();
+    let _ = steady
+        .set_target(AngularSpeed::from_rad_per_s(3.0))
+        .unwrap();
     let below = f32::from_bits(3.0_f32.to_bits() - 1);
     let mut worst = 0.0_f32;
     for k in 0..12_000 {
         let target = if k % 2 == 0 { 3.0 } else { below };
-        let _ = busy.set_target(AngularSpeed::from_rad_per_s(target)).unwrap();
+        let _ = busy
+            .set_target(AngularSpeed::from_rad_per_s(target))
+            .unwrap();
         let a = steady.step(1.0e-3).unwrap();
         let b = busy.step(1.0e-3).unwrap();
         worst = worst.max((a.speed.rad_per_s() - b.speed.rad_per_s()).abs());

@@ -643,7 +643,13 @@ fn emit_three_phase(b: &mut Builder<'_>, s: f32, p: &ThreePhase, wt: f32, k: Kin
 
 /// Builds the plan into `plan`; inputs already checked (finite, in range,
 /// policy applied).
-pub(crate) fn build(plan: &mut Plan, limits: &RampLimits, reverse: Reverse, start: Anchor, vt: f32) {
+pub(crate) fn build(
+    plan: &mut Plan,
+    limits: &RampLimits,
+    reverse: Reverse,
+    start: Anchor,
+    vt: f32,
+) {
     let (v0, a0) = (start.v, start.a);
     let (inv_up, inv_down, ij) = limits.reciprocals();
     let k = Kin {
@@ -793,8 +799,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
         let (t1, t2, peak) = if h <= pre.max {
             ((h - al0) * k.ij, 0.0, h)
         } else {
-            let hold =
-                (al0 * al0 + q * q) * k.hij * pre.inv - pre.max * k.ij + dw * pre.inv;
+            let hold = (al0 * al0 + q * q) * k.hij * pre.inv - pre.max * k.ij + dw * pre.inv;
             ((pre.max - al0) * k.ij, hold.max(0.0), pre.max)
         };
         let w2 = between(-(peak * peak - q * q) * k.hij, w0, 0.0);
@@ -876,7 +881,13 @@ mod tests {
         build(&mut p, &l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 4.0);
         assert!((p.duration_s() - (4.0 / 1.0 + 1.0 / 2.0)).abs() < 1e-5);
         assert_eq!(p.segments().len(), 3);
-        build(&mut p, &l, Reverse::Forbidden, Anchor::exact(0.0, 0.0), 0.125);
+        build(
+            &mut p,
+            &l,
+            Reverse::Forbidden,
+            Anchor::exact(0.0, 0.0),
+            0.125,
+        );
         assert!((p.duration_s() - 2.0 * (0.125_f32 / 2.0).sqrt()).abs() < 1e-6);
         assert_eq!(p.segments().len(), 2);
     }

@@ -102,7 +102,10 @@ fn rest_to_rest_phases(dv: f64, a: f64, j: f64) -> (Vec<Phase>, f64) {
         (tj, 0.0, j * tj)
     };
     let phases = vec![
-        Phase { jerk: j, duration: tj },
+        Phase {
+            jerk: j,
+            duration: tj,
+        },
         Phase {
             jerk: 0.0,
             duration: ta,
@@ -164,7 +167,11 @@ fn bound(l: &Limits, v: f64, a: f64) -> f64 {
 /// acceleration. With `reverse_allowed == false` a negative target becomes 0.
 #[must_use]
 pub fn plan(l: &Limits, reverse_allowed: bool, v0: f64, a0: f64, target: f64) -> Profile {
-    let vt = if reverse_allowed { target } else { target.max(0.0) };
+    let vt = if reverse_allowed {
+        target
+    } else {
+        target.max(0.0)
+    };
     let j = l.jerk;
     let mut phases = Vec::new();
     let (mut v, mut a) = (v0, a0);
