@@ -7,6 +7,7 @@ pub mod geometry;
 pub mod gravity;
 pub mod math;
 pub mod modes;
+pub mod ramp;
 pub mod seat_model;
 pub mod steady;
 pub mod units;
@@ -22,6 +23,10 @@ pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
 pub use modes::{SwingMode, SwingModes};
+pub use ramp::{
+    Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
+    TargetStatus,
+};
 pub use seat_model::{SeatModel, SeatState};
 pub use steady::{Sensitivity, SteadyState};
 pub use units::{Angle, AngularSpeed, DriveReference, DriveScale, GearRatio};

@@ -6,5 +6,6 @@
 //! Being a host-side test oracle, it may index its small fixed-size arrays.
 #![allow(clippy::indexing_slicing)]
 
+pub mod ramp;
 pub mod seat;
 pub mod steady;
