@@ -45,9 +45,11 @@ const JERK_ROUNDING: f32 = 1.0e-4;
 /// Within the segment, at time `t` seconds after its start,
 /// `speed = start_speed + start_acceleration·t + jerk·t²/2` and
 /// `acceleration = start_acceleration + jerk·t`. The end values are stored too:
-/// they are the next segment's anchor, and evaluation clamps into
-/// `[start, end]` (the acceleration never changes sign inside a segment, so the
-/// speed is monotone there), which rules out overshoot by rounding.
+/// they are the next segment's anchor; in the second half of the segment the
+/// same polynomial is evaluated from them (`τ` = time to the end:
+/// `speed = end_speed − end_acceleration·τ + jerk·τ²/2`). Evaluation clamps
+/// into `[start, end]` (the acceleration never changes sign inside a segment,
+/// so the speed is monotone there), which rules out overshoot by rounding.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Segment {
