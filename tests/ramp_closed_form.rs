@@ -6,6 +6,8 @@
     clippy::panic,
     clippy::indexing_slicing
 )]
+// Uses the f64 reference, which is host-only (feature `std`).
+#![cfg(feature = "std")]
 
 use swingdrive::reference::ramp as reference;
 use swingdrive::{AngularSpeed, Plan, RampLimits, Reverse};

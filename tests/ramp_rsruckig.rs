@@ -13,6 +13,8 @@
     clippy::panic,
     clippy::indexing_slicing
 )]
+// Uses the f64 reference, which is host-only (feature `std`).
+#![cfg(feature = "std")]
 
 use proptest::prelude::RngExt;
 use proptest::test_runner::{RngAlgorithm, TestRng};

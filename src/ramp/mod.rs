@@ -280,7 +280,7 @@ impl SpeedRamp {
         let whole = remaining / period;
         let total = whole
             .saturating_add(1)
-            .saturating_add(u64::from(remaining % period != 0));
+            .saturating_add(u64::from(!remaining.is_multiple_of(period)));
         let mut points = heapless::Vec::new();
         let mut k: u64 = 0;
         while k < total {

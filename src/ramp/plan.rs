@@ -45,9 +45,11 @@ const JERK_ROUNDING: f32 = 1.0e-4;
 /// Within the segment, at time `t` seconds after its start,
 /// `speed = start_speed + start_acceleration·t + jerk·t²/2` and
 /// `acceleration = start_acceleration + jerk·t`. The end values are stored too:
-/// they are the next segment's anchor, and evaluation clamps into
-/// `[start, end]` (the acceleration never changes sign inside a segment, so the
-/// speed is monotone there), which rules out overshoot by rounding.
+/// they are the next segment's anchor; in the second half of the segment the
+/// same polynomial is evaluated from them (`τ` = time to the end:
+/// `speed = end_speed − end_acceleration·τ + jerk·τ²/2`). Evaluation clamps
+/// into `[start, end]` (the acceleration never changes sign inside a segment,
+/// so the speed is monotone there), which rules out overshoot by rounding.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Segment {
@@ -303,18 +305,7 @@ impl Plan {
         acceleration_rad_s2: f32,
         target: AngularSpeed,
     ) -> Result<Self, ParamError> {
-        let v0 = check_speed("speed", speed.rad_per_s())?;
-        if reverse == Reverse::Forbidden && v0 < 0.0 {
-            return Err(ParamError::Negative("speed"));
-        }
-        let a0 = acceleration_rad_s2;
-        if !a0.is_finite() {
-            return Err(ParamError::NonFinite("acceleration"));
-        }
-        if a0.abs() > MAX_INITIAL_ACCELERATION_RAD_S2 {
-            return Err(ParamError::OutOfRange("acceleration"));
-        }
-        let (vt, clamped) = admit_target(reverse, check_speed("target", target.rad_per_s())?);
+        let (v0, a0, vt, clamped) = checked_start(reverse, speed, acceleration_rad_s2, target)?;
         let mut plan = Self::at_rest(vt);
         build(&mut plan, limits, reverse, Anchor::exact(v0, a0), vt);
         plan.target_clamped = clamped;
@@ -334,18 +325,7 @@ impl Plan {
         acceleration_rad_s2: f32,
         target: AngularSpeed,
     ) -> Result<(), ParamError> {
-        let v0 = check_speed("speed", speed.rad_per_s())?;
-        if reverse == Reverse::Forbidden && v0 < 0.0 {
-            return Err(ParamError::Negative("speed"));
-        }
-        let a0 = acceleration_rad_s2;
-        if !a0.is_finite() {
-            return Err(ParamError::NonFinite("acceleration"));
-        }
-        if a0.abs() > MAX_INITIAL_ACCELERATION_RAD_S2 {
-            return Err(ParamError::OutOfRange("acceleration"));
-        }
-        let (vt, clamped) = admit_target(reverse, check_speed("target", target.rad_per_s())?);
+        let (v0, a0, vt, clamped) = checked_start(reverse, speed, acceleration_rad_s2, target)?;
         build(self, limits, reverse, Anchor::exact(v0, a0), vt);
         self.target_clamped = clamped;
         Ok(())
@@ -485,6 +465,29 @@ impl Plan {
             .fold(0_u64, |sum, s| sum.saturating_add(s.duration_quanta))
             .saturating_sub(into)
     }
+}
+
+/// Checks a start state and target for [`Plan::new`] and [`Plan::replan`]:
+/// `(speed, acceleration, target after the reverse policy, clamped)`.
+fn checked_start(
+    reverse: Reverse,
+    speed: AngularSpeed,
+    acceleration_rad_s2: f32,
+    target: AngularSpeed,
+) -> Result<(f32, f32, f32, bool), ParamError> {
+    let v0 = check_speed("speed", speed.rad_per_s())?;
+    if reverse == Reverse::Forbidden && v0 < 0.0 {
+        return Err(ParamError::Negative("speed"));
+    }
+    let a0 = acceleration_rad_s2;
+    if !a0.is_finite() {
+        return Err(ParamError::NonFinite("acceleration"));
+    }
+    if a0.abs() > MAX_INITIAL_ACCELERATION_RAD_S2 {
+        return Err(ParamError::OutOfRange("acceleration"));
+    }
+    let (vt, clamped) = admit_target(reverse, check_speed("target", target.rad_per_s())?);
+    Ok((v0, a0, vt, clamped))
 }
 
 /// Finite and within ±[`MAX_SPEED_RAD_S`].
