@@ -615,7 +615,7 @@ fn three_phase(w0: f32, al0: f32, wt: f32, lim: Lim, k: Kin) -> ThreePhase {
     let dw = (wt - w0).max(0.0);
     // Peak when the limit is not reached: the speed change splits into the
     // rise from al0 to h, (h² - al0²)/2j, and the fall from h to 0, h²/2j.
-    let h = libm::sqrtf(0.5 * al0 * al0 + k.j * dw);
+    let h = crate::math::sqrt(0.5 * al0 * al0 + k.j * dw);
     let (t1, t2, peak) = if h <= lim.max {
         (((h - al0) * k.ij).max(0.0), 0.0, h)
     } else {
@@ -750,7 +750,7 @@ pub(crate) fn build(
 #[allow(clippy::too_many_arguments)]
 fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post: Lim, k: Kin) {
     // Acceleration at the crossing if it kept rising at +j from the start.
-    let al_c = libm::sqrtf(al0 * al0 - 2.0 * k.j * w0);
+    let al_c = crate::math::sqrt(al0 * al0 - 2.0 * k.j * w0);
     if post.max >= pre.max {
         // (a) The profile under the looser limit everywhere stays within `pre`
         // before the crossing.
@@ -792,7 +792,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
         // at `pre`, fall to `post`), hold `post`, fall to zero.
         let q = post.max;
         let dw = -w0;
-        let h = libm::sqrtf(0.5 * (al0 * al0 + q * q) + k.j * dw);
+        let h = crate::math::sqrt(0.5 * (al0 * al0 + q * q) + k.j * dw);
         if h < al0 || h < q {
             // The acceleration cannot come down to `post` before zero speed:
             // the excess is forced by the initial state.
