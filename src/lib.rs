@@ -8,6 +8,7 @@ pub mod gravity;
 pub mod math;
 pub mod modes;
 pub mod ramp;
+pub mod request_governor;
 pub mod seat_model;
 pub mod steady;
 pub mod units;
@@ -26,6 +27,9 @@ pub use modes::{SwingMode, SwingModes};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,
+};
+pub use request_governor::{
+    GovernorDecision, GovernorInput, GovernorStatus, PassThrough, RequestGovernor,
 };
 pub use seat_model::{SeatModel, SeatState};
 pub use steady::{Sensitivity, SteadyState};

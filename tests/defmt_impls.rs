@@ -3,14 +3,25 @@
 #![cfg(feature = "defmt")]
 
 use swingdrive::{
-    Angle, AngularSpeed, DriveReference, DriveScale, GearRatio, Gravity, ParamError, RideGeometry,
-    SeatModel, SeatState, Sensitivity, SteadyState, Suspension, SwingMode, SwingModes,
+    Angle, AngularSpeed, DriveReference, DriveScale, GearRatio, GovernorDecision, GovernorInput,
+    GovernorStatus, Gravity, ParamError, PassThrough, Plan, RampLimits, RampPhase, RideGeometry,
+    SeatModel, SeatState, Sensitivity, Setpoint, SpeedRamp, SteadyState, Suspension, SwingMode,
+    SwingModes,
 };
 
 fn loggable<T: defmt::Format>() {}
 
 #[test]
 fn public_types_implement_defmt_format() {
+    loggable::<GovernorDecision>();
+    loggable::<GovernorInput>();
+    loggable::<GovernorStatus>();
+    loggable::<PassThrough>();
+    loggable::<Plan>();
+    loggable::<RampLimits>();
+    loggable::<RampPhase>();
+    loggable::<Setpoint>();
+    loggable::<SpeedRamp>();
     loggable::<Angle>();
     loggable::<AngularSpeed>();
     loggable::<DriveReference>();
