@@ -5,6 +5,7 @@ pub mod commissioning;
 pub mod error;
 pub mod geometry;
 pub mod gravity;
+pub mod interlock;
 pub mod math;
 pub mod modes;
 pub mod ramp;
@@ -23,6 +24,10 @@ pub mod sim;
 pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
+pub use interlock::{
+    BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
+    Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
+};
 pub use modes::{SwingMode, SwingModes};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,

@@ -2,17 +2,36 @@
 //! Adding a public type? Add it here too.
 #![cfg(feature = "defmt")]
 
+use swingdrive::interlock::CeilingSource;
 use swingdrive::{
     Angle, AngularSpeed, DriveReference, DriveScale, GearRatio, GovernorDecision, GovernorInput,
     GovernorStatus, Gravity, ParamError, PassThrough, Plan, RampLimits, RampPhase, RideGeometry,
     SeatModel, SeatState, Sensitivity, Setpoint, SpeedRamp, SteadyState, Suspension, SwingMode,
     SwingModes,
 };
+use swingdrive::{
+    BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
+    Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
+};
 
 fn loggable<T: defmt::Format>() {}
 
 #[test]
 fn public_types_implement_defmt_format() {
+    loggable::<BlockError>();
+    loggable::<CeilingSource>();
+    loggable::<Event>();
+    loggable::<EventKind>();
+    loggable::<EventLog<4>>();
+    loggable::<Interlock<4>>();
+    loggable::<InterlockState>();
+    loggable::<SafetyConfig>();
+    loggable::<SafetyParams>();
+    loggable::<Sample>();
+    loggable::<SpeedCeiling>();
+    loggable::<TickInputs>();
+    loggable::<TickOutput>();
+    loggable::<TripCause>();
     loggable::<GovernorDecision>();
     loggable::<GovernorInput>();
     loggable::<GovernorStatus>();
