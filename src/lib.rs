@@ -15,6 +15,8 @@ pub mod steady;
 pub mod units;
 
 #[cfg(feature = "std")]
+pub mod program_file;
+#[cfg(feature = "std")]
 pub mod reference;
 #[cfg(feature = "std")]
 pub mod ride_file;
