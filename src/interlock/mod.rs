@@ -389,6 +389,8 @@ impl<const N: usize> Interlock<N> {
     /// Handles one trip cause present this tick: records it once per latch and
     /// moves the state machine (a cause never lowers the reaction already
     /// under way).
+    #[cold]
+    #[inline(never)]
     fn trip(&mut self, cause: TripCause, measured: f32) {
         if self.state == InterlockState::Ready
             && matches!(
@@ -443,6 +445,8 @@ impl<const N: usize> Interlock<N> {
 
     /// Starts the clock of a stop: the ramp's time to bring the present
     /// command to zero, plus the margin.
+    #[cold]
+    #[inline(never)]
     fn start_stop_clock(&mut self) {
         self.timed_elapsed_s = 0.0;
         self.timed_allowance_s = self.ramp_stop_time_s() + self.params.config().stop_time_margin_s;
@@ -466,6 +470,8 @@ impl<const N: usize> Interlock<N> {
         self.state = next;
     }
 
+    #[cold]
+    #[inline(never)]
     fn record(&mut self, kind: EventKind, measured: f32, value: f32) {
         self.events.push(Event {
             tick: self.tick,
