@@ -16,6 +16,18 @@ use swingdrive::{
 
 fn loggable<T: defmt::Format>() {}
 
+#[cfg(feature = "hal")]
+#[test]
+fn hal_types_implement_defmt_format() {
+    use embedded_hal_mock::eh1::digital::Mock as Pin;
+    use embedded_hal_mock::eh1::pwm::Mock as Pwm;
+    use swingdrive::interlock::{HalIo, PinFault, ReferenceMode, SpeedReference};
+    loggable::<HalIo<Pin, Pin, Pwm, Pin, Pin>>();
+    loggable::<PinFault>();
+    loggable::<ReferenceMode>();
+    loggable::<SpeedReference>();
+}
+
 #[test]
 fn public_types_implement_defmt_format() {
     loggable::<BlockError>();

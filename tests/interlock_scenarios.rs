@@ -592,3 +592,53 @@ fn a_refused_request_keeps_the_previous_one_and_is_recorded_once() {
             .count();
     assert_eq!(refused, 1);
 }
+
+#[test]
+fn a_stale_angle_sensor_stops_the_ride() {
+    let c = config();
+    let mut r = Rig::running_at(c, 0.6);
+    let mut reaction = 0;
+    let last = r.seq;
+    for n in 1..=100u16 {
+        let mut i = r.inputs();
+        i.angle.sequence = last; // the angle sensor stops delivering
+        let o = r.tick_raw(&i);
+        r.measured = o.command.speed.rad_per_s();
+        if o.state != InterlockState::Running {
+            reaction = n;
+            break;
+        }
+    }
+    assert_eq!(reaction, c.stale_ticks);
+    assert_eq!(r.out.state, InterlockState::Stopping);
+    assert_eq!(r.il.cause(), Some(TripCause::AngleSensorStale));
+}
+
+#[test]
+fn a_ride_still_creeping_when_the_stop_time_is_up_loses_its_permit() {
+    let c = config();
+    let mut r = Rig::running_at(c, 0.6);
+    r.run_enable = false;
+    r.tick();
+    r.run_enable = true;
+    // The drive follows the ramp down but creeps on at 0.05 rad/s, inside the
+    // following tolerance (0.08) and above standstill (0.01).
+    let mut ticks = 1u32;
+    while r.out.run_permit {
+        ticks += 1;
+        assert!(ticks < 1_000);
+        let creep = r.cmd().max(0.05);
+        let mut i = r.inputs();
+        i.speed.value = creep;
+        i.second_speed.value = creep;
+        r.tick_raw(&i);
+    }
+    // Ramp time from 0.6 rad/s 1.3 s + margin 1.0 s (hand calculation, common practice).
+    let expected = (1.3 + 1.0) / DT;
+    assert!(
+        (ticks as f32 - expected).abs() <= 2.0,
+        "{ticks} vs {expected}"
+    );
+    assert!(r.has_event(EventKind::Trip(TripCause::NotFollowingStop)));
+    assert!(r.has_event(EventKind::PermitRemovedAtOnce));
+}

@@ -22,6 +22,8 @@
 
 mod ceiling;
 mod events;
+#[cfg(feature = "hal")]
+mod hal;
 mod inputs;
 mod params;
 mod sensor;
@@ -29,6 +31,8 @@ mod state;
 
 pub use ceiling::{CeilingSource, SpeedCeiling, ROUND_DOWN_ULPS};
 pub use events::{Event, EventKind, EventLog};
+#[cfg(feature = "hal")]
+pub use hal::{HalIo, PinFault, ReferenceMode, SpeedReference};
 pub use inputs::{Sample, TickInputs, TickOutput};
 pub use params::{BlockError, SafetyConfig, SafetyParams};
 pub use state::{InterlockState, TripCause};
@@ -45,7 +49,7 @@ pub const DEFAULT_EVENT_CAPACITY: usize = 16;
 /// swing past horizontal on its link while turning).
 const MAX_ANGLE_SAMPLE_RAD: f32 = core::f32::consts::FRAC_PI_2;
 
-/// Bit in `Interlock::seen` for a refused reset (cause bits are 1..=13).
+/// Bit in `Interlock::seen` for a refused reset (cause bits are 1..=14).
 const RESET_REFUSED_BIT: u16 = 1 << 15;
 
 /// The speed interlock, with a record of its last `N` events.
@@ -389,6 +393,8 @@ impl<const N: usize> Interlock<N> {
     /// Handles one trip cause present this tick: records it once per latch and
     /// moves the state machine (a cause never lowers the reaction already
     /// under way).
+    #[cold]
+    #[inline(never)]
     fn trip(&mut self, cause: TripCause, measured: f32) {
         if self.state == InterlockState::Ready
             && matches!(
@@ -414,7 +420,10 @@ impl<const N: usize> Interlock<N> {
         if self.cause.is_none() {
             self.cause = Some(cause);
         }
-        let immediate = matches!(cause, TripCause::TickOverrun | TripCause::NotFollowingStop);
+        let immediate = matches!(
+            cause,
+            TripCause::TickOverrun | TripCause::NotFollowingStop | TripCause::PinFault
+        );
         let untrusted = matches!(
             cause,
             TripCause::SpeedSensorStale
@@ -443,9 +452,18 @@ impl<const N: usize> Interlock<N> {
 
     /// Starts the clock of a stop: the ramp's time to bring the present
     /// command to zero, plus the margin.
+    #[cold]
+    #[inline(never)]
     fn start_stop_clock(&mut self) {
         self.timed_elapsed_s = 0.0;
         self.timed_allowance_s = self.ramp_stop_time_s() + self.params.config().stop_time_margin_s;
+    }
+
+    /// A hardware pin failed: trips with the permit removed at once.
+    #[cfg_attr(not(feature = "hal"), allow(dead_code))]
+    pub(crate) fn pin_fault(&mut self) {
+        let measured = self.primary.value();
+        self.trip(TripCause::PinFault, measured);
     }
 
     /// Time the ramp needs to bring the present command to zero, s.
@@ -466,6 +484,8 @@ impl<const N: usize> Interlock<N> {
         self.state = next;
     }
 
+    #[cold]
+    #[inline(never)]
     fn record(&mut self, kind: EventKind, measured: f32, value: f32) {
         self.events.push(Event {
             tick: self.tick,

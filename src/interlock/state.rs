@@ -43,6 +43,7 @@ impl InterlockState {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 #[repr(u8)]
+#[non_exhaustive]
 pub enum TripCause {
     /// Measured speed above ceiling + overspeed tolerance.
     Overspeed = 1,
@@ -73,11 +74,14 @@ pub enum TripCause {
     RampRefused = 12,
     /// The parameter set in memory no longer matches its CRC stamp.
     ParameterIntegrity = 13,
+    /// A hardware input or output pin reported an error (feature `hal`):
+    /// the permit is removed at once.
+    PinFault = 14,
 }
 
 impl TripCause {
     /// Every cause, in code order.
-    pub const ALL: [Self; 13] = [
+    pub const ALL: [Self; 14] = [
         Self::Overspeed,
         Self::FollowingError,
         Self::NotFollowingStop,
@@ -91,6 +95,7 @@ impl TripCause {
         Self::TickOverrun,
         Self::RampRefused,
         Self::ParameterIntegrity,
+        Self::PinFault,
     ];
 
     /// The cause's code in the event block.
