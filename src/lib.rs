@@ -7,12 +7,15 @@ pub mod geometry;
 pub mod gravity;
 pub mod math;
 pub mod modes;
+pub mod player;
 pub mod ramp;
 pub mod request_governor;
 pub mod seat_model;
 pub mod steady;
 pub mod units;
 
+#[cfg(feature = "std")]
+pub mod design;
 #[cfg(feature = "std")]
 pub mod reference;
 #[cfg(feature = "std")]
@@ -24,6 +27,7 @@ pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
 pub use modes::{SwingMode, SwingModes};
+pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,

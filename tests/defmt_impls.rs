@@ -8,6 +8,7 @@ use swingdrive::{
     SeatModel, SeatState, Sensitivity, Setpoint, SpeedRamp, SteadyState, Suspension, SwingMode,
     SwingModes,
 };
+use swingdrive::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 
 fn loggable<T: defmt::Format>() {}
 
@@ -37,4 +38,8 @@ fn public_types_implement_defmt_format() {
     loggable::<Suspension>();
     loggable::<SwingMode>();
     loggable::<SwingModes>();
+    loggable::<PlayerOutput>();
+    loggable::<ProfilePlayer<'static>>();
+    loggable::<ProfileTable<'static>>();
+    loggable::<TableError>();
 }
