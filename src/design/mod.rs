@@ -23,7 +23,7 @@
 //! a quadratic program — the damped Gauss–Newton model under the linear limit
 //! constraints — so every iterate keeps the limits. The design is then
 //! sampled into the table and checked in the adaptive simulator
-//! ([`crate::sim::replay`]) on a finer set of lengths; the figures reported are
+//! ([`fn@crate::sim::replay`]) on a finer set of lengths; the figures reported are
 //! those of the check, not of the optimiser.
 //!
 //! # Convergence and failure

@@ -6,7 +6,7 @@
 //! (an adaptive step control would add step-size noise to finite
 //! differences), and the acceleration spline is smooth inside each span, so a
 //! span is integrated in equal steps of at most [`MAX_STEP_S`]. Every result is
-//! checked afterwards by the adaptive simulator ([`crate::sim::replay`]).
+//! checked afterwards by the adaptive simulator ([`fn@crate::sim::replay`]).
 
 use crate::sim::dynamics::{LinkState, SeatDynamics, ShaftMotion, Vec3};
 
