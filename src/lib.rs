@@ -5,6 +5,7 @@ pub mod commissioning;
 pub mod error;
 pub mod geometry;
 pub mod gravity;
+pub mod interlock;
 pub mod math;
 pub mod modes;
 pub mod player;
@@ -16,6 +17,7 @@ pub mod units;
 
 #[cfg(feature = "std")]
 pub mod design;
+pub mod program_file;
 #[cfg(feature = "std")]
 pub mod reference;
 #[cfg(feature = "std")]
@@ -26,6 +28,10 @@ pub mod sim;
 pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
+pub use interlock::{
+    BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
+    Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
+};
 pub use modes::{SwingMode, SwingModes};
 pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 pub use ramp::{
