@@ -8,6 +8,7 @@ pub mod gravity;
 pub mod interlock;
 pub mod math;
 pub mod modes;
+pub mod player;
 pub mod ramp;
 pub mod request_governor;
 pub mod seat_model;
@@ -15,6 +16,7 @@ pub mod steady;
 pub mod units;
 
 #[cfg(feature = "std")]
+pub mod design;
 pub mod program_file;
 #[cfg(feature = "std")]
 pub mod reference;
@@ -31,6 +33,7 @@ pub use interlock::{
     Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
 };
 pub use modes::{SwingMode, SwingModes};
+pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,

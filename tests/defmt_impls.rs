@@ -13,6 +13,7 @@ use swingdrive::{
     BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
     Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
 };
+use swingdrive::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 
 fn loggable<T: defmt::Format>() {}
 
@@ -68,4 +69,8 @@ fn public_types_implement_defmt_format() {
     loggable::<Suspension>();
     loggable::<SwingMode>();
     loggable::<SwingModes>();
+    loggable::<PlayerOutput>();
+    loggable::<ProfilePlayer<'static>>();
+    loggable::<ProfileTable<'static>>();
+    loggable::<TableError>();
 }
