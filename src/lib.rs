@@ -7,6 +7,7 @@ pub mod geometry;
 pub mod gravity;
 pub mod math;
 pub mod modes;
+pub mod protection;
 pub mod ramp;
 pub mod request_governor;
 pub mod seat_model;
@@ -24,6 +25,9 @@ pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
 pub use modes::{SwingMode, SwingModes};
+pub use protection::{
+    Certificate, EstimatorFault, GovernorParams, SwingEnvelope, SwingEstimator, SwingGovernor,
+};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,

@@ -37,4 +37,10 @@ fn public_types_implement_defmt_format() {
     loggable::<Suspension>();
     loggable::<SwingMode>();
     loggable::<SwingModes>();
+    loggable::<swingdrive::protection::Certificate>();
+    loggable::<swingdrive::protection::EstimatorFault>();
+    loggable::<swingdrive::protection::GovernorParams>();
+    loggable::<swingdrive::protection::SwingEnvelope>();
+    loggable::<swingdrive::protection::SwingEstimator>();
+    loggable::<swingdrive::protection::SwingGovernor>();
 }
