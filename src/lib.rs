@@ -5,6 +5,7 @@ pub mod commissioning;
 pub mod error;
 pub mod geometry;
 pub mod gravity;
+pub mod interlock;
 pub mod math;
 pub mod modes;
 pub mod protection;
@@ -15,6 +16,8 @@ pub mod steady;
 pub mod units;
 
 #[cfg(feature = "std")]
+pub mod program_file;
+#[cfg(feature = "std")]
 pub mod reference;
 #[cfg(feature = "std")]
 pub mod ride_file;
@@ -24,6 +27,10 @@ pub mod sim;
 pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
+pub use interlock::{
+    BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
+    Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
+};
 pub use modes::{SwingMode, SwingModes};
 pub use protection::{
     Certificate, EstimatorFault, GovernorParams, SwingEnvelope, SwingEstimator, SwingGovernor,

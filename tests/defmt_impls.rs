@@ -2,17 +2,48 @@
 //! Adding a public type? Add it here too.
 #![cfg(feature = "defmt")]
 
+use swingdrive::interlock::CeilingSource;
 use swingdrive::{
     Angle, AngularSpeed, DriveReference, DriveScale, GearRatio, GovernorDecision, GovernorInput,
     GovernorStatus, Gravity, ParamError, PassThrough, Plan, RampLimits, RampPhase, RideGeometry,
     SeatModel, SeatState, Sensitivity, Setpoint, SpeedRamp, SteadyState, Suspension, SwingMode,
     SwingModes,
 };
+use swingdrive::{
+    BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
+    Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
+};
 
 fn loggable<T: defmt::Format>() {}
 
+#[cfg(feature = "hal")]
+#[test]
+fn hal_types_implement_defmt_format() {
+    use embedded_hal_mock::eh1::digital::Mock as Pin;
+    use embedded_hal_mock::eh1::pwm::Mock as Pwm;
+    use swingdrive::interlock::{HalIo, PinFault, ReferenceMode, SpeedReference};
+    loggable::<HalIo<Pin, Pin, Pwm, Pin, Pin>>();
+    loggable::<PinFault>();
+    loggable::<ReferenceMode>();
+    loggable::<SpeedReference>();
+}
+
 #[test]
 fn public_types_implement_defmt_format() {
+    loggable::<BlockError>();
+    loggable::<CeilingSource>();
+    loggable::<Event>();
+    loggable::<EventKind>();
+    loggable::<EventLog<4>>();
+    loggable::<Interlock<4>>();
+    loggable::<InterlockState>();
+    loggable::<SafetyConfig>();
+    loggable::<SafetyParams>();
+    loggable::<Sample>();
+    loggable::<SpeedCeiling>();
+    loggable::<TickInputs>();
+    loggable::<TickOutput>();
+    loggable::<TripCause>();
     loggable::<GovernorDecision>();
     loggable::<GovernorInput>();
     loggable::<GovernorStatus>();
