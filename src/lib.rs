@@ -9,6 +9,7 @@ pub mod interlock;
 pub mod math;
 pub mod modes;
 pub mod player;
+pub mod protection;
 pub mod ramp;
 pub mod request_governor;
 pub mod seat_model;
@@ -34,6 +35,9 @@ pub use interlock::{
 };
 pub use modes::{SwingMode, SwingModes};
 pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
+pub use protection::{
+    Certificate, EstimatorFault, GovernorParams, SwingEnvelope, SwingEstimator, SwingGovernor,
+};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,

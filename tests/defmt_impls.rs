@@ -73,4 +73,10 @@ fn public_types_implement_defmt_format() {
     loggable::<ProfilePlayer<'static>>();
     loggable::<ProfileTable<'static>>();
     loggable::<TableError>();
+    loggable::<swingdrive::protection::Certificate>();
+    loggable::<swingdrive::protection::EstimatorFault>();
+    loggable::<swingdrive::protection::GovernorParams>();
+    loggable::<swingdrive::protection::SwingEnvelope>();
+    loggable::<swingdrive::protection::SwingEstimator>();
+    loggable::<swingdrive::protection::SwingGovernor>();
 }
