@@ -45,8 +45,10 @@ pub use setpoint::{RampPhase, Setpoint};
 
 use crate::error::ParamError;
 use crate::units::AngularSpeed;
-use clock::{quanta_from_s, s_from_quanta, TickCache};
-use plan::{admit_target, build, check_speed, Anchor};
+pub(crate) use clock::quanta_from_s;
+use clock::{s_from_quanta, TickCache};
+pub(crate) use plan::{admit_target, check_speed};
+use plan::{build, Anchor};
 
 /// Longest accepted tick, s. A setpoint generator that has not run for longer
 /// has a fault of its own; the caller must stop the ride, not catch up.
