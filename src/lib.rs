@@ -3,6 +3,8 @@
 
 pub mod commissioning;
 pub mod error;
+#[cfg(feature = "fixed")]
+pub mod fixed_point;
 pub mod geometry;
 pub mod gravity;
 pub mod interlock;

@@ -29,6 +29,19 @@ fn hal_types_implement_defmt_format() {
     loggable::<SpeedReference>();
 }
 
+#[cfg(feature = "fixed")]
+#[test]
+fn fixed_point_types_implement_defmt_format() {
+    use swingdrive::fixed_point::{
+        FixedCeiling, FixedRamp, FixedRampPlayer, FixedSetpoint, FixedSpeedLimit,
+    };
+    loggable::<FixedCeiling>();
+    loggable::<FixedRamp>();
+    loggable::<FixedRampPlayer>();
+    loggable::<FixedSetpoint>();
+    loggable::<FixedSpeedLimit>();
+}
+
 #[test]
 fn public_types_implement_defmt_format() {
     loggable::<BlockError>();
