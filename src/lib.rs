@@ -11,6 +11,7 @@ pub mod interlock;
 pub mod math;
 pub mod modes;
 pub mod player;
+pub mod program;
 pub mod protection;
 pub mod ramp;
 pub mod request_governor;
