@@ -44,6 +44,13 @@ fn fixed_point_types_implement_defmt_format() {
 
 #[test]
 fn public_types_implement_defmt_format() {
+    loggable::<swingdrive::program::CycleRunner<'static>>();
+    loggable::<swingdrive::program::CycleState>();
+    loggable::<swingdrive::program::CycleStatus>();
+    loggable::<swingdrive::program::Program<'static, 4>>();
+    loggable::<swingdrive::program::ProgramError>();
+    loggable::<swingdrive::program::Step<'static>>();
+    loggable::<swingdrive::program::StepProblem>();
     loggable::<BlockError>();
     loggable::<CeilingSource>();
     loggable::<Event>();
