@@ -214,9 +214,9 @@ pub struct StepReport {
     /// Largest angle of the link from vertical during the step, °.
     pub peak_angle_deg: f64,
     /// Largest angle between the link and its steady direction at the
-    /// step's final speed, over the settling window after the step (one
-    /// rest-pendulum period 2π√(L/g), cut short when the next step changes
-    /// the speed), °; `None` when the next step changes the speed at once
+    /// step's final commanded speed, over the settling window after the step
+    /// (one rest-pendulum period 2π√(L/g), cut short when the next step
+    /// changes the command), °; `None` when the next step changes the speed at once
     /// (less than half that window to look at).
     pub residual_swing_deg: Option<f64>,
     /// Largest load factor during the step.
@@ -248,15 +248,16 @@ pub fn step_reports(
             peak = peak.max(o.state.angle_from_vertical_rad());
             load = load.max(o.link.load_factor);
         }
-        // The settling window: from the end of the step while the shaft stays
-        // at the step's final speed.
-        let final_speed = s.shaft_rad_s;
+        // The settling window: from the end of the step while the command
+        // stays at the step's final speed (the shaft follows it with the
+        // drive's lag).
+        let final_speed = s.command_rad_s;
         let steady = seat.steady_state(final_speed);
         let moved = trace
             .get(i + 1..)
             .unwrap_or(&[])
             .iter()
-            .find(|n| (n.shaft_rad_s - final_speed).abs() > 1.0e-3 || n.time_s > end + window)
+            .find(|n| n.command_rad_s != final_speed || n.time_s > end + window)
             .map_or(end + window, |n| n.time_s);
         let residual = (moved - end >= 0.5 * window).then(|| {
             seat_samples
