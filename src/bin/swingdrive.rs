@@ -689,6 +689,7 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
         map.insert("residual_swing_deg".into(), json!(d.residual_swing_deg));
         map.insert("peak_angle_deg".into(), json!(d.peak_angle_deg));
         map.insert("steady_angle_deg".into(), json!(d.steady_angle_deg));
+        map.insert("overshoot_deg".into(), json!(d.overshoot_deg));
         map.insert("limits_ok".into(), json!(d.limits_ok));
         map.insert(
             "profile".into(),
@@ -736,8 +737,8 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
         d.residual_swing_deg, band.0, band.1, args.target_deg
     ));
     text.push_str(&format!(
-        "peak angle from vertical  {:7.2}° (steady {:.2}°)\n",
-        d.peak_angle_deg, d.steady_angle_deg
+        "peak angle from vertical  {:7.2}° worst over the band (nominal steady {:.2}°; overshoot past each length's own steady angle {:.2}°)\n",
+        d.peak_angle_deg, d.steady_angle_deg, d.overshoot_deg
     ));
     text.push_str(&format!(
         "profile vs limits         {}: accel {:.4}, decel {:.4}, jerk {:.4}\n",
