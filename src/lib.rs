@@ -3,12 +3,16 @@
 
 pub mod commissioning;
 pub mod error;
+#[cfg(feature = "fixed")]
+pub mod fixed_point;
 pub mod geometry;
 pub mod gravity;
 pub mod interlock;
 pub mod math;
 pub mod modes;
 pub mod player;
+pub mod program;
+pub mod protection;
 pub mod ramp;
 pub mod request_governor;
 pub mod seat_model;
@@ -35,6 +39,9 @@ pub use interlock::{
 };
 pub use modes::{SwingMode, SwingModes};
 pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
+pub use protection::{
+    Certificate, EstimatorFault, GovernorParams, SwingEnvelope, SwingEstimator, SwingGovernor,
+};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,
