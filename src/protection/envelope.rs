@@ -253,29 +253,31 @@ impl SwingEnvelope {
         }
     }
 
-    /// Smallest of √T_cap(ω) + growth_to(ω) over ω in `[lo, hi]` (speed
-    /// magnitudes), with cell bounds: the binding point of a move down.
-    /// Bounded by [`CELLS`] iterations.
+    /// Smallest slack along a move down from speed magnitude `hi` to `lo`
+    /// (`lo` ≤ `hi`), when √S has reached `start` at `hi`: at each ω on the
+    /// way √S ≤ start + growth_to(hi) − growth_to(ω) must stay below the room
+    /// at ω + `u`. Checked cell by cell with the cell's bounds (the growth
+    /// counted from the cell's lower end, the room read at its upper end);
+    /// bounded by [`CELLS`] iterations.
     #[must_use]
-    pub fn lowest_reserve(&self, lo: f32, hi: f32) -> f32 {
-        let first = self.cell(lo);
-        let last = self.cell(hi);
-        let Some(first) = first else {
-            // The whole range is at or above the top: no room at all.
-            return self.growth_to(lo);
-        };
-        let last = last.unwrap_or(CELLS - 1);
-        let mut lowest = f32::INFINITY;
+    pub fn down_slack(&self, start: f32, lo: f32, hi: f32, u: f32) -> f32 {
+        let top_g = self.growth_to(hi);
+        let first = self.cell(lo).unwrap_or(CELLS);
+        let last = self.cell(hi).unwrap_or(CELLS);
+        let mut slack = f32::INFINITY;
+        if last == CELLS {
+            // The piece starts at or above the top: no room there.
+            slack = -start;
+        }
         let mut i = first;
         while i <= last && i < CELLS {
-            let z = at(&self.room, i, 0.0) + at(&self.cumulative, i, 0.0);
-            lowest = lowest.min(z);
+            let low = grid(self.top_rad_s, i).max(lo);
+            let high = grid(self.top_rad_s, i + 1).min(hi);
+            let grown = start + top_g - self.growth_to(low);
+            slack = slack.min(self.room(high + u) - grown);
             i += 1;
         }
-        if self.cell(hi).is_none() {
-            lowest = lowest.min(self.growth_to(self.top_rad_s));
-        }
-        lowest
+        slack
     }
 
     /// Largest ½ G over the cells, 1/s per rad/s.
