@@ -217,6 +217,14 @@ impl SwingGovernor {
             .fold(f32::INFINITY, f32::min)
     }
 
+    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
+    fn steepest_growth(&self) -> f32 {
+        self.envelopes
+            .iter()
+            .map(SwingEnvelope::steepest_growth)
+            .fold(0.0, f32::max)
+    }
+
     /// Slack of the path from the commanded state (`v`, `a`) through the
     /// braking point to `target`, smallest over the lengths, 1/s.
     #[must_use]
@@ -283,7 +291,17 @@ impl SwingGovernor {
         let reach = self.params.target_rate_rad_s2 * self.params.estimator_period_s;
         let trial = held + (request - held).clamp(-reach, reach);
         let s_trial = self.slack(measured, v, a, trial);
-        if s_trial >= margin {
+        // A move away from standstill must leave enough slack for the first
+        // step back down to be certified too (the bound charges a step down
+        // at most ½G per rad/s, and the room grows back as the speed falls),
+        // so that lowering is never blocked by the governor's own ascent.
+        let lowering = libm::fabsf(trial) < libm::fabsf(held);
+        let reserve = if lowering {
+            0.0
+        } else {
+            2.0 * reach * self.steepest_growth()
+        };
+        if s_trial >= margin + reserve {
             self.admitted = record(trial, s_trial, true, &mut self.last);
             if trial == request {
                 return GovernorDecision {
@@ -328,12 +346,10 @@ fn magnitude_piece(env: &SwingEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -
         *r += env.growth_to(m2) - env.growth_to(m1);
         env.room(m2 + u) - *r
     } else {
-        // Down: binding where room + growth_to is smallest over the piece
-        // (the room read u higher, and the growth counted from there).
-        let g1 = env.growth_to(m1);
-        let reserve = env.lowest_reserve(m2 + u, m1 + u) - env.steepest_growth() * u;
-        let slack = reserve - (*r + g1);
-        *r += g1 - env.growth_to(m2);
+        // Down: the room grows back as the speed falls, √S may grow too;
+        // checked cell by cell.
+        let slack = env.down_slack(*r, m2, m1, u);
+        *r += env.growth_to(m1) - env.growth_to(m2);
         slack
     }
 }
