@@ -7,14 +7,21 @@ pub mod error;
 pub mod fixed_point;
 pub mod geometry;
 pub mod gravity;
+pub mod interlock;
 pub mod math;
 pub mod modes;
+pub mod player;
+pub mod program;
+pub mod protection;
 pub mod ramp;
 pub mod request_governor;
 pub mod seat_model;
 pub mod steady;
 pub mod units;
 
+#[cfg(feature = "std")]
+pub mod design;
+pub mod program_file;
 #[cfg(feature = "std")]
 pub mod reference;
 #[cfg(feature = "std")]
@@ -25,7 +32,15 @@ pub mod sim;
 pub use error::ParamError;
 pub use geometry::{RideGeometry, Suspension};
 pub use gravity::Gravity;
+pub use interlock::{
+    BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
+    Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
+};
 pub use modes::{SwingMode, SwingModes};
+pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
+pub use protection::{
+    Certificate, EstimatorFault, GovernorParams, SwingEnvelope, SwingEstimator, SwingGovernor,
+};
 pub use ramp::{
     Plan, RampLimits, RampPhase, ReseedError, ReseedReason, Reverse, Setpoint, SpeedRamp,
     TargetStatus,

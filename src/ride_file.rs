@@ -17,6 +17,9 @@
 //! max_jerk_rad_s3 = 0.05
 //! ```
 //!
+//! An optional `[interlock]` table holds the speed interlock's safety
+//! parameter set ([`SafetyParams`]); see `docs/files.md`.
+//!
 //! Adding a table: give [`RideFile`] a field (an `Option` if the table may
 //! be left out), add its raw `#[serde(deny_unknown_fields)]` struct with
 //! [`toml::Spanned`] values next to the others below, validate it in
@@ -31,6 +34,8 @@ use toml::Spanned;
 use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
 use crate::gravity::{Gravity, STANDARD_GRAVITY_MPS2};
+use crate::interlock::{SafetyConfig, SafetyParams};
+use crate::ramp::Reverse;
 use crate::sim::profile::ProfileStats;
 use crate::sim::{DriveModel, SeatDynamics};
 
@@ -51,6 +56,8 @@ pub struct RideFile {
     pub limits: RideLimits,
     /// The `[drive]` table, if given.
     pub drive: Option<DriveModel>,
+    /// The `[interlock]` table, if given: the checked safety parameter set.
+    pub interlock: Option<SafetyParams>,
 }
 
 /// Limits a speed profile for this ride must keep (`[limits]`).
@@ -182,7 +189,42 @@ struct RawRideFile {
     limits: RawLimits,
     swing: Option<RawSwing>,
     drive: Option<RawDrive>,
+    interlock: Option<RawInterlock>,
 }
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawInterlock {
+    certified_angle_deg: Spanned<f64>,
+    max_load_factor: Option<Spanned<f64>>,
+    mechanical_max_rad_s: Spanned<f64>,
+    hub_offset_max_m: Option<Spanned<f64>>,
+    length_max_m: Option<Spanned<f64>>,
+    gravity_min_mps2: Option<Spanned<f64>>,
+    speed_margin_rad_s: Spanned<f64>,
+    max_acceleration_rad_s2: Spanned<f64>,
+    max_deceleration_rad_s2: Spanned<f64>,
+    max_jerk_rad_s3: Spanned<f64>,
+    overspeed_tolerance_rad_s: Spanned<f64>,
+    following_tolerance_rad_s: Spanned<f64>,
+    channel_tolerance_rad_s: Spanned<f64>,
+    sensor_max_rad_s: Spanned<f64>,
+    standstill_rad_s: Spanned<f64>,
+    tick_s: Spanned<f64>,
+    overrun_tick_s: Spanned<f64>,
+    stop_time_margin_s: Spanned<f64>,
+    brake_delay_s: Spanned<f64>,
+    debounce_ticks: Spanned<i64>,
+    stale_ticks: Spanned<i64>,
+    standstill_ticks: Spanned<i64>,
+    reverse_permitted: Spanned<bool>,
+    second_channel: Spanned<bool>,
+    angle_sensor: Spanned<bool>,
+}
+
+/// Share of the nominal effective length added for the longest one when
+/// `[interlock] length_max_m` is left out (see docs/safety.md).
+pub const DEFAULT_LENGTH_TOLERANCE: f64 = 0.05;
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -223,14 +265,15 @@ struct RawDrive {
     coast_viscous_per_s: Option<Spanned<f64>>,
 }
 
-/// Turns byte offsets into line numbers and builds errors.
-struct Locator<'a> {
-    source: &'a str,
-    text: &'a str,
+/// Turns byte offsets into line numbers and builds errors (shared with the
+/// ride-cycle program file).
+pub(crate) struct Locator<'a> {
+    pub(crate) source: &'a str,
+    pub(crate) text: &'a str,
 }
 
 impl Locator<'_> {
-    fn line_of(&self, offset: usize) -> usize {
+    pub(crate) fn line_of(&self, offset: usize) -> usize {
         let end = offset.min(self.text.len());
         self.text
             .as_bytes()
@@ -239,7 +282,12 @@ impl Locator<'_> {
             + 1
     }
 
-    fn error(&self, offset: Option<usize>, field: Option<&str>, message: String) -> RideFileError {
+    pub(crate) fn error(
+        &self,
+        offset: Option<usize>,
+        field: Option<&str>,
+        message: String,
+    ) -> RideFileError {
         RideFileError {
             source: self.source.to_owned(),
             line: offset.map(|o| self.line_of(o)),
@@ -250,7 +298,7 @@ impl Locator<'_> {
 
     /// Checks a value with `check`, reporting a refusal at the value's line
     /// under `table.key`.
-    fn value<T>(
+    pub(crate) fn value<T>(
         &self,
         table: &str,
         value: &Spanned<f64>,
@@ -285,6 +333,135 @@ fn limit(name: &'static str, value: f64, max: f64) -> Result<f64, ParamError> {
     } else {
         Ok(value)
     }
+}
+
+/// Checks the `[interlock]` table against the ride's geometry and builds the
+/// parameter set; a refusal points at the key's line.
+fn interlock_params(
+    at: &Locator<'_>,
+    i: &RawInterlock,
+    geometry: &RideGeometry,
+) -> Result<SafetyParams, RideFileError> {
+    let key_error = |span: &std::ops::Range<usize>, key: &str, message: String| {
+        at.error(Some(span.start), Some(&format!("interlock.{key}")), message)
+    };
+    #[allow(clippy::cast_possible_truncation)]
+    let f = |v: &Spanned<f64>| *v.get_ref() as f32;
+    let ticks = |v: &Spanned<i64>, key: &str| {
+        u16::try_from(*v.get_ref()).map_err(|_| {
+            key_error(
+                &v.span(),
+                key,
+                "must be a whole number from 1 to 65535".into(),
+            )
+        })
+    };
+    // The tolerance band defaults to the nominal geometry, with the longest
+    // length 5 % above the nominal one.
+    let nominal_length = f64::from(geometry.length_m());
+    let band =
+        |v: &Option<Spanned<f64>>, nominal: f64| v.as_ref().map_or(nominal, |v| *v.get_ref());
+    let hub_offset_max = band(&i.hub_offset_max_m, f64::from(geometry.hub_offset_m()));
+    let length_max = band(
+        &i.length_max_m,
+        nominal_length * (1.0 + DEFAULT_LENGTH_TOLERANCE),
+    );
+    let gravity_min = band(&i.gravity_min_mps2, f64::from(geometry.gravity().mps2()));
+    let line_of_band = |v: &Option<Spanned<f64>>| v.as_ref().map_or(0..0, Spanned::span);
+    if hub_offset_max < f64::from(geometry.hub_offset_m()) {
+        return Err(key_error(
+            &line_of_band(&i.hub_offset_max_m),
+            "hub_offset_max_m",
+            "must not be below [geometry] hub_offset_m".into(),
+        ));
+    }
+    if length_max < nominal_length {
+        return Err(key_error(
+            &line_of_band(&i.length_max_m),
+            "length_max_m",
+            "must not be below [geometry] length_m".into(),
+        ));
+    }
+    if gravity_min > f64::from(geometry.gravity().mps2()) {
+        return Err(key_error(
+            &line_of_band(&i.gravity_min_mps2),
+            "gravity_min_mps2",
+            "must not be above [geometry] gravity_mps2".into(),
+        ));
+    }
+    #[allow(clippy::cast_possible_truncation)]
+    let config = SafetyConfig {
+        certified_angle_deg: f(&i.certified_angle_deg),
+        max_load_factor: i.max_load_factor.as_ref().map(f),
+        mechanical_max_rad_s: f(&i.mechanical_max_rad_s),
+        hub_offset_max_m: hub_offset_max as f32,
+        length_max_m: length_max as f32,
+        gravity_min_mps2: gravity_min as f32,
+        speed_margin_rad_s: f(&i.speed_margin_rad_s),
+        max_acceleration_rad_s2: f(&i.max_acceleration_rad_s2),
+        max_deceleration_rad_s2: f(&i.max_deceleration_rad_s2),
+        max_jerk_rad_s3: f(&i.max_jerk_rad_s3),
+        overspeed_tolerance_rad_s: f(&i.overspeed_tolerance_rad_s),
+        following_tolerance_rad_s: f(&i.following_tolerance_rad_s),
+        channel_tolerance_rad_s: f(&i.channel_tolerance_rad_s),
+        sensor_max_rad_s: f(&i.sensor_max_rad_s),
+        standstill_rad_s: f(&i.standstill_rad_s),
+        tick_s: f(&i.tick_s),
+        overrun_tick_s: f(&i.overrun_tick_s),
+        stop_time_margin_s: f(&i.stop_time_margin_s),
+        brake_delay_s: f(&i.brake_delay_s),
+        debounce_ticks: ticks(&i.debounce_ticks, "debounce_ticks")?,
+        stale_ticks: ticks(&i.stale_ticks, "stale_ticks")?,
+        standstill_ticks: ticks(&i.standstill_ticks, "standstill_ticks")?,
+        reverse: if *i.reverse_permitted.get_ref() {
+            Reverse::Allowed
+        } else {
+            Reverse::Forbidden
+        },
+        second_channel: *i.second_channel.get_ref(),
+        angle_sensor: *i.angle_sensor.get_ref(),
+    };
+    SafetyParams::new(config).map_err(|e| {
+        let key = e.parameter();
+        let span = [
+            ("certified_angle_deg", i.certified_angle_deg.span()),
+            ("max_load_factor", line_of_band(&i.max_load_factor)),
+            ("mechanical_max_rad_s", i.mechanical_max_rad_s.span()),
+            ("hub_offset_max_m", line_of_band(&i.hub_offset_max_m)),
+            ("length_max_m", line_of_band(&i.length_max_m)),
+            ("gravity_min_mps2", line_of_band(&i.gravity_min_mps2)),
+            ("speed_margin_rad_s", i.speed_margin_rad_s.span()),
+            ("max_acceleration_rad_s2", i.max_acceleration_rad_s2.span()),
+            ("max_deceleration_rad_s2", i.max_deceleration_rad_s2.span()),
+            ("max_jerk_rad_s3", i.max_jerk_rad_s3.span()),
+            (
+                "overspeed_tolerance_rad_s",
+                i.overspeed_tolerance_rad_s.span(),
+            ),
+            (
+                "following_tolerance_rad_s",
+                i.following_tolerance_rad_s.span(),
+            ),
+            ("channel_tolerance_rad_s", i.channel_tolerance_rad_s.span()),
+            ("sensor_max_rad_s", i.sensor_max_rad_s.span()),
+            ("standstill_rad_s", i.standstill_rad_s.span()),
+            ("tick_s", i.tick_s.span()),
+            ("overrun_tick_s", i.overrun_tick_s.span()),
+            ("stop_time_margin_s", i.stop_time_margin_s.span()),
+            ("brake_delay_s", i.brake_delay_s.span()),
+            ("debounce_ticks", i.debounce_ticks.span()),
+            ("stale_ticks", i.stale_ticks.span()),
+            ("standstill_ticks", i.standstill_ticks.span()),
+        ]
+        .into_iter()
+        .find(|(k, _)| *k == key)
+        .map(|(_, s)| s);
+        at.error(
+            span.filter(|s| s.end > 0).map(|s| s.start),
+            Some(&format!("interlock.{key}")),
+            format!("{e} (ranges in docs/files.md)"),
+        )
+    })
 }
 
 impl RideFile {
@@ -399,11 +576,17 @@ impl RideFile {
             }
         };
 
+        let interlock = match &raw.interlock {
+            None => None,
+            Some(i) => Some(interlock_params(&at, i, &geometry)?),
+        };
+
         Ok(Self {
             geometry,
             seat,
             limits,
             drive,
+            interlock,
         })
     }
 }
@@ -469,6 +652,44 @@ mod tests {
         assert_eq!(e.line(), Some(7));
         let e = RideFile::from_toml_str("[geometry\n", "r.toml").unwrap_err();
         assert_eq!(e.line(), Some(1));
+    }
+
+    const INTERLOCK: &str = "\n[interlock]\ncertified_angle_deg = 40.0\nmechanical_max_rad_s = 2.0\nspeed_margin_rad_s = 0.02\nmax_acceleration_rad_s2 = 0.1\nmax_deceleration_rad_s2 = 0.12\nmax_jerk_rad_s3 = 0.05\noverspeed_tolerance_rad_s = 0.05\nfollowing_tolerance_rad_s = 0.08\nchannel_tolerance_rad_s = 0.04\nsensor_max_rad_s = 5.0\nstandstill_rad_s = 0.01\ntick_s = 0.001\noverrun_tick_s = 0.002\nstop_time_margin_s = 2.0\nbrake_delay_s = 30.0\ndebounce_ticks = 5\nstale_ticks = 10\nstandstill_ticks = 50\nreverse_permitted = false\nsecond_channel = true\nangle_sensor = false\n";
+
+    #[test]
+    fn the_interlock_table_builds_the_parameter_set() {
+        // Demo data (invented ride).
+        let ride = RideFile::from_toml_str(&format!("{GOOD}{INTERLOCK}"), "r.toml").unwrap();
+        let p = ride.interlock.unwrap();
+        let c = p.config();
+        assert_eq!(c.certified_angle_deg, 40.0);
+        assert_eq!(c.hub_offset_max_m, 3.6);
+        // Default band: 5 % over the nominal 6 m (docs/safety.md).
+        assert!((c.length_max_m - 6.3).abs() < 1e-6);
+        assert_eq!(c.gravity_min_mps2, STANDARD_GRAVITY_MPS2);
+        assert_eq!(c.reverse, Reverse::Forbidden);
+        assert!(c.second_channel);
+        assert!(RideFile::from_toml_str(GOOD, "r.toml")
+            .unwrap()
+            .interlock
+            .is_none());
+    }
+
+    #[test]
+    fn interlock_errors_name_line_and_key() {
+        let text = format!("{GOOD}{INTERLOCK}").replace("tick_s = 0.001", "tick_s = 0.5");
+        let e = RideFile::from_toml_str(&text, "r.toml").unwrap_err();
+        assert_eq!(e.field(), Some("interlock.tick_s"));
+        assert_eq!(e.line(), Some(23));
+        let text = format!("{GOOD}{INTERLOCK}length_max_m = 5.0\n");
+        let e = RideFile::from_toml_str(&text, "r.toml").unwrap_err();
+        assert_eq!(e.field(), Some("interlock.length_max_m"));
+        let text = format!("{GOOD}{INTERLOCK}").replace("stale_ticks = 10", "stale_ticks = -1");
+        let e = RideFile::from_toml_str(&text, "r.toml").unwrap_err();
+        assert_eq!(e.field(), Some("interlock.stale_ticks"));
+        let text = format!("{GOOD}{INTERLOCK}").replace("angle_sensor = false\n", "");
+        let e = RideFile::from_toml_str(&text, "r.toml").unwrap_err();
+        assert!(e.message().contains("missing field `angle_sensor`"), "{e}");
     }
 
     #[test]

@@ -25,6 +25,14 @@ pub fn write_trace_csv<W: Write>(trace: &[TraceSample], writer: W) -> Result<(),
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct PlotError(String);
 
+impl PlotError {
+    /// A plot error with a message.
+    #[must_use]
+    pub fn new(message: String) -> Self {
+        Self(message)
+    }
+}
+
 impl fmt::Display for PlotError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(f, "cannot draw the plot: {}", self.0)
