@@ -21,6 +21,7 @@ pub mod units;
 
 #[cfg(feature = "std")]
 pub mod design;
+#[cfg(feature = "std")]
 pub mod program_file;
 #[cfg(feature = "std")]
 pub mod reference;
