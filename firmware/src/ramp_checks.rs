@@ -108,7 +108,7 @@ pub fn ramp(tally: &mut Tally) {
                     "ramp plan sample",
                     i,
                     ok,
-                    v.to_bits() == c.host_speed_bits && a.to_bits() == c.host_accel_bits,
+                    Some(v.to_bits() == c.host_speed_bits && a.to_bits() == c.host_accel_bits),
                 );
                 if !ok {
                     crate::say(format_args!(
@@ -125,7 +125,12 @@ pub fn ramp(tally: &mut Tally) {
         match got {
             Some(v) => {
                 let ok = within(v, c.speed, c.speed_tol);
-                tally.numeric("ramp tick run", i, ok, v.to_bits() == c.host_speed_bits);
+                tally.numeric(
+                    "ramp tick run",
+                    i,
+                    ok,
+                    Some(v.to_bits() == c.host_speed_bits),
+                );
                 if !ok {
                     crate::say(format_args!(
                         "  got {v}; expected {} ± {}",
@@ -154,4 +159,44 @@ fn run_f32(c: &TickRun, limits: RampLimits, reverse: Reverse) -> Option<f32> {
         }
     }
     Some(v)
+}
+
+/// Runs the tick runs through the fixed-point ramp (plans in f32, ticks in
+/// I16F16 output), within each vector's fixed-point tolerance.
+#[cfg(feature = "fixed")]
+pub fn fixed_ramp(tally: &mut Tally) {
+    use swingdrive::fixed_point::FixedRamp;
+    for (i, c) in crate::ramp_vectors::TICK_RUNS.iter().enumerate() {
+        let got = c.limits().and_then(|(l, r)| {
+            let mut ramp = FixedRamp::new(l, r, crate::ramp_vectors::TICK_S).ok()?;
+            let _ = ramp
+                .set_target(AngularSpeed::from_rad_per_s(c.first))
+                .ok()?;
+            let mut v = ramp.setpoint().speed;
+            for k in 1..=c.ticks {
+                v = ramp.step().speed;
+                if k == c.change_after {
+                    let _ = ramp
+                        .set_target(AngularSpeed::from_rad_per_s(c.second))
+                        .ok()?;
+                }
+            }
+            Some(v)
+        });
+        match got {
+            Some(v) => {
+                // I16F16 to f64 is exact.
+                let value = f64::from(v.to_bits()) / 65_536.0;
+                let ok = libm::fabs(value - c.speed) <= c.fixed_tol;
+                tally.numeric("fixed ramp tick run", i, ok, None);
+                if !ok {
+                    crate::say(format_args!(
+                        "  got {value}; expected {} ± {}",
+                        c.speed, c.fixed_tol
+                    ));
+                }
+            }
+            None => tally.check("fixed ramp tick run refused", false),
+        }
+    }
 }

@@ -46,20 +46,8 @@ pub type Accel = fixed::types::I16F16;
 /// Internal anchor speed, rad/s.
 type Wide = fixed::types::I32F32;
 
-/// Internal acceleration and half jerk.
-type Coef = fixed::types::I24F40;
-
-/// Time since an anchor in seconds: the quanta of 2⁻³⁶ s as the raw bits.
-type Time = fixed::types::I28F36;
-
 /// `x` rounded to the nearest I16F16 (ties up), saturating.
 fn round_out_wide(x: Wide) -> Speed {
     x.saturating_add(Wide::from_bits(1 << 15))
-        .saturating_to_num::<Speed>()
-}
-
-/// `x` rounded to the nearest I16F16 (ties up), saturating.
-fn round_out_coef(x: Coef) -> Speed {
-    x.saturating_add(Coef::from_bits(1 << 23))
         .saturating_to_num::<Speed>()
 }

@@ -1,7 +1,7 @@
 //! The fixed-point ramp player: a plan converted once, evaluated each tick in
 //! closed form from the current segment's anchor.
 
-use super::{round_out_coef, round_out_wide, Accel, Coef, Speed, Time, Wide};
+use super::{round_out_wide, Accel, Speed, Wide};
 use crate::error::ParamError;
 use crate::ramp::{quanta_from_s, Plan, RampPhase, MAX_SEGMENTS, MAX_TICK_S};
 
@@ -37,87 +37,211 @@ impl FixedSetpoint {
     }
 }
 
-/// One constant-jerk segment in fixed point.
+/// One constant-jerk segment in fixed point, with scales chosen per segment
+/// (block floating point) so that every per-tick product is 32 × 32 → 64 bits
+/// and only two shifts by a variable amount remain:
+///
+/// * time since the nearer anchor in units of 2^sh quanta, a `u32`; `sh`
+///   (possibly negative) puts the whole duration in \[2³¹, 2³²) units, so
+///   |α|·2³¹ below stays within the segment's acceleration range;
+/// * accelerations as `i64` at scale 2^(fb+32), `fb` as large as the segment's
+///   largest |acceleration| allows (below 2²⁹ after scaling), so that the
+///   high word is the same acceleration as an `i32` at scale 2^fb;
+/// * the acceleration's slope per time unit, `α = (j/2)·2^(sh−36)`, as an
+///   `i32` at scale 2^(fb+32).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct FixedSegment {
-    start_v: Wide,
-    start_a: Coef,
-    end_v: Wide,
-    end_a: Coef,
-    half_jerk: Coef,
+    /// Anchor speeds, I32F32 bits.
+    start_v: i64,
+    end_v: i64,
+    /// Anchor accelerations at scale 2^(fb+32).
+    start_a: i64,
+    end_a: i64,
+    /// `(j/2)·2^(sh−36)·2^(fb+32)`.
+    alpha: i32,
     duration: u64,
+    /// Time unit 2^sh quanta.
+    sh: i8,
+    /// Scale of the `i32` accelerations.
+    fb: u8,
+    /// Shift from `mean × time` (scale 2^(fb+36−sh)) to I32F32 (right).
+    to_speed: u8,
     phase: RampPhase,
 }
 
 impl FixedSegment {
     const EMPTY: Self = Self {
-        start_v: Wide::ZERO,
-        start_a: Coef::ZERO,
-        end_v: Wide::ZERO,
-        end_a: Coef::ZERO,
-        half_jerk: Coef::ZERO,
+        start_v: 0,
+        end_v: 0,
+        start_a: 0,
+        end_a: 0,
+        alpha: 0,
         duration: 0,
+        sh: 0,
+        fb: 0,
+        to_speed: 0,
         phase: RampPhase::AtTarget,
     };
 
-    /// Speed and acceleration `q` quanta after the start (`q` below the
-    /// duration), from the nearer anchor, limited to the segment's range.
+    /// Converts one `f32` segment (once per plan; soft-float on the M0).
+    fn from_segment(s: &crate::ramp::Segment) -> Self {
+        let duration = s.duration_quanta();
+        // 2³¹ ≤ duration / 2^sh < 2³² (sh < 0 scales up: exact).
+        let sh = 64 - duration.leading_zeros() as i32 - 32;
+        let (a0, a1) = (s.start_acceleration_rad_s2(), s.end_acceleration_rad_s2());
+        let amax = abs(a0).max(abs(a1));
+        // fb: |a|·2^fb < 2²⁹ (two bits spare for 2·mean − a), between 0 and 30.
+        let fb = (28 - exponent(amax)).clamp(0, 30);
+        let fa = fb + 32;
+        let alpha_f = 0.5 * s.jerk_rad_s3() * pow2(sh - 36);
+        // fb + 36 − sh − 32 ≥ 0 for every duration below 2⁶³ quanta.
+        let to_speed = (fb + 4 - sh).clamp(0, 63);
+        Self {
+            start_v: wide(s.start_speed_rad_s()).to_bits(),
+            end_v: wide(s.end_speed_rad_s()).to_bits(),
+            start_a: scaled(a0, fa),
+            end_a: scaled(a1, fa),
+            alpha: libm::roundf(alpha_f * pow2(fa.min(100) - 50) * pow2(50)) as i32,
+            duration,
+            sh: sh as i8,
+            fb: fb as u8,
+            to_speed: to_speed as u8,
+            phase: s.phase(),
+        }
+    }
+
+    /// Speed (I32F32) and acceleration (scale 2^fb) `q` quanta after the start
+    /// (`q` below the duration), from the nearer anchor, limited to the
+    /// segment's range. Integer instructions only.
     #[inline]
-    fn evaluate(&self, q: u64) -> (Wide, Coef) {
-        let (v, a) = if q <= self.duration / 2 {
-            let t = time(q);
-            // inner = a₀ + t·j/2; v = v₀ + t·inner; a = a₀ + t·j = 2·inner − a₀.
-            let inner = self.start_a.saturating_add(mul_coef(t, self.half_jerk));
+    fn evaluate(&self, q: u64) -> (Wide, i32) {
+        let from_start = q <= self.duration / 2;
+        let dq = if from_start { q } else { self.duration - q };
+        // Time in units, rounded to nearest (below 2³²: dq ≤ duration / 2).
+        let t = if self.sh > 0 {
+            let sh = self.sh as u32;
+            ((dq + (1 << (sh - 1))) >> sh) as u32
+        } else {
+            (dq << (-self.sh) as u32) as u32
+        };
+        let slope = mul_i32_u32(self.alpha, t);
+        // mean = a_anchor ± α·t (the mean acceleration since the anchor);
+        // v = v_anchor ± mean·t; a = 2·mean − a_anchor. No overflow: every
+        // term stays within the segment's scaled range (|a|·2^(fb+32) < 2⁶¹).
+        let (v, a) = if from_start {
+            let mean = self.start_a.wrapping_add(slope);
+            let m = (mean >> 32) as i32;
+            let dv = mul_i32_u32(m, t) >> self.to_speed;
             (
-                self.start_v.saturating_add(mul_wide(t, inner)),
-                inner.saturating_add(inner).saturating_sub(self.start_a),
+                self.start_v.wrapping_add(dv),
+                m.wrapping_mul(2).wrapping_sub((self.start_a >> 32) as i32),
             )
         } else {
-            let tau = time(self.duration - q);
-            // From the end: inner = a₁ − τ·j/2; v = v₁ − τ·inner; a = 2·inner − a₁.
-            let inner = self.end_a.saturating_sub(mul_coef(tau, self.half_jerk));
+            let mean = self.end_a.wrapping_sub(slope);
+            let m = (mean >> 32) as i32;
+            let dv = mul_i32_u32(m, t) >> self.to_speed;
             (
-                self.end_v.saturating_sub(mul_wide(tau, inner)),
-                inner.saturating_add(inner).saturating_sub(self.end_a),
+                self.end_v.wrapping_sub(dv),
+                m.wrapping_mul(2).wrapping_sub((self.end_a >> 32) as i32),
             )
         };
-        (
-            between(v, self.start_v, self.end_v),
-            between(a, self.start_a, self.end_a),
-        )
+        let (lo_v, hi_v) = order(self.start_v, self.end_v);
+        let (lo_a, hi_a) = order((self.start_a >> 32) as i32, (self.end_a >> 32) as i32);
+        (Wide::from_bits(v.clamp(lo_v, hi_v)), a.clamp(lo_a, hi_a))
+    }
+
+    /// An acceleration at scale 2^fb as I16F16, rounded to nearest (ties up).
+    #[inline]
+    fn accel_out(&self, a: i32) -> Accel {
+        let bits = if self.fb > 16 {
+            let s = u32::from(self.fb) - 16;
+            (i64::from(a) + (1 << (s - 1))) >> s
+        } else {
+            i64::from(a) << (16 - u32::from(self.fb))
+        };
+        Accel::from_bits(bits.clamp(i64::from(i32::MIN), i64::from(i32::MAX)) as i32)
     }
 }
 
-/// Quanta as seconds (the quanta are the raw bits of I28F36; beyond 2²⁷ s,
-/// far past any plan's segment, saturates).
+/// `(min, max)` of two values.
 #[inline]
-fn time(q: u64) -> Time {
-    Time::from_bits(i64::try_from(q).unwrap_or(i64::MAX))
-}
-
-/// `t·c` as I24F40 (product rounded toward −∞, saturating).
-#[inline]
-fn mul_coef(t: Time, c: Coef) -> Coef {
-    t.wide_mul(c).saturating_to_num::<Coef>()
-}
-
-/// `t·c` as I32F32 (product rounded toward −∞, saturating).
-#[inline]
-fn mul_wide(t: Time, c: Coef) -> Wide {
-    t.wide_mul(c).saturating_to_num::<Wide>()
-}
-
-/// `x` limited to the interval spanned by `p` and `q`.
-#[inline]
-fn between<T: PartialOrd + Copy>(x: T, p: T, q: T) -> T {
-    let (lo, hi) = if p <= q { (p, q) } else { (q, p) };
-    if x < lo {
-        lo
-    } else if x > hi {
-        hi
+fn order<T: PartialOrd>(p: T, q: T) -> (T, T) {
+    if p <= q {
+        (p, q)
     } else {
-        x
+        (q, p)
     }
+}
+
+/// A speed as I32F32, rounded to nearest. A plan's speeds are finite and
+/// within ±10⁴ rad/s; anything else (never produced) saturates, NaN gives 0,
+/// without the panic of `saturating_from_num` on NaN.
+fn wide(x: f32) -> Wide {
+    Wide::checked_from_num(x).unwrap_or(if x > 0.0 {
+        Wide::MAX
+    } else if x < 0.0 {
+        Wide::MIN
+    } else {
+        Wide::ZERO
+    })
+}
+
+/// `2^e` as `f32` for `e` in −126..=127 (exact).
+fn pow2(e: i32) -> f32 {
+    f32::from_bits(((e.clamp(-126, 127) + 127) as u32) << 23)
+}
+
+/// `floor(log2 x)` for a positive finite `x` (−127 for zero).
+fn exponent(x: f32) -> i32 {
+    ((x.to_bits() >> 23) & 0xff) as i32 - 127
+}
+
+fn abs(x: f32) -> f32 {
+    f32::from_bits(x.to_bits() & 0x7fff_ffff)
+}
+
+/// `x·2^f` rounded to nearest, as `i64` (saturating).
+fn scaled(x: f32, f: i32) -> i64 {
+    // Two steps of at most 2³¹ keep every factor an exact power of two in f32.
+    let y = x * pow2(f.min(31)) * pow2((f - 31).max(0));
+    libm::roundf(y) as i64
+}
+
+/// `a·b` exactly, from 32-bit pieces: on the Cortex-M0 (no long multiply) four
+/// 16 × 16 → 32 multiplies instead of the 64 × 64 library routine.
+#[inline]
+pub(crate) fn mul_i32_u32(a: i32, b: u32) -> i64 {
+    let ua = a.unsigned_abs();
+    let p = mul_u32_u32(ua, b) as i64;
+    if a < 0 {
+        -p
+    } else {
+        p
+    }
+}
+
+#[cfg(all(target_arch = "arm", not(target_abi = "eabihf")))]
+#[inline]
+fn mul_u32_u32(a: u32, b: u32) -> u64 {
+    mul_u32_u32_split(a, b)
+}
+
+#[cfg(not(all(target_arch = "arm", not(target_abi = "eabihf"))))]
+#[inline]
+fn mul_u32_u32(a: u32, b: u32) -> u64 {
+    u64::from(a) * u64::from(b)
+}
+
+/// 32 × 32 → 64 from four 16 × 16 → 32 products (each fits 32 bits).
+#[inline]
+#[allow(dead_code)] // used on the M0 and by the tests
+pub(crate) fn mul_u32_u32_split(a: u32, b: u32) -> u64 {
+    let (al, ah) = (a & 0xffff, a >> 16);
+    let (bl, bh) = (b & 0xffff, b >> 16);
+    let lo = u64::from(al * bl);
+    let mid = u64::from(ah * bl) + u64::from(al * bh);
+    let hi = u64::from(ah * bh);
+    (hi << 32) + (mid << 16) + lo
 }
 
 /// Plays a [`Plan`] at a fixed tick period in fixed point.
@@ -193,19 +317,11 @@ impl FixedRampPlayer {
         let mut len = 0_u8;
         // At most MAX_SEGMENTS iterations (the zip stops at the shorter side).
         for (slot, s) in self.segments.iter_mut().zip(plan.segments()) {
-            *slot = FixedSegment {
-                start_v: Wide::saturating_from_num(s.start_speed_rad_s()),
-                start_a: Coef::saturating_from_num(s.start_acceleration_rad_s2()),
-                end_v: Wide::saturating_from_num(s.end_speed_rad_s()),
-                end_a: Coef::saturating_from_num(s.end_acceleration_rad_s2()),
-                half_jerk: Coef::saturating_from_num(0.5 * s.jerk_rad_s3()),
-                duration: s.duration_quanta(),
-                phase: s.phase(),
-            };
+            *slot = FixedSegment::from_segment(s);
             len += 1;
         }
         self.len = len;
-        self.target = Wide::saturating_from_num(plan.target().rad_per_s());
+        self.target = wide(plan.target().rad_per_s());
         self.segment = 0;
         self.into = 0;
     }
@@ -237,13 +353,19 @@ impl FixedRampPlayer {
     #[must_use]
     #[inline]
     pub fn setpoint(&self) -> FixedSetpoint {
-        let (v, a) = self.state();
-        FixedSetpoint {
-            speed: round_out_wide(v),
-            acceleration: round_out_coef(a),
-            phase: match self.active(self.segment) {
-                Some(seg) => seg.phase,
-                None => RampPhase::AtTarget,
+        match self.active(self.segment) {
+            Some(seg) => {
+                let (v, a) = seg.evaluate(self.into);
+                FixedSetpoint {
+                    speed: round_out_wide(v),
+                    acceleration: seg.accel_out(a),
+                    phase: seg.phase,
+                }
+            }
+            None => FixedSetpoint {
+                speed: round_out_wide(self.target),
+                acceleration: Accel::ZERO,
+                phase: RampPhase::AtTarget,
             },
         }
     }
@@ -252,8 +374,14 @@ impl FixedRampPlayer {
     /// resolution, as `f32`: the start state for the next plan.
     #[must_use]
     pub fn state_f32(&self) -> (f32, f32) {
-        let (v, a) = self.state();
-        (v.to_num::<f32>(), a.to_num::<f32>())
+        match self.active(self.segment) {
+            Some(seg) => {
+                let (v, a) = seg.evaluate(self.into);
+                // a·2^−fb: the scale is an exact power of two.
+                (v.to_num::<f32>(), a as f32 * pow2(-i32::from(seg.fb)))
+            }
+            None => (self.target.to_num::<f32>(), 0.0),
+        }
     }
 
     /// `true` once the plan is complete.
@@ -262,19 +390,45 @@ impl FixedRampPlayer {
         self.segment >= self.len
     }
 
-    fn state(&self) -> (Wide, Coef) {
-        match self.active(self.segment) {
-            Some(seg) => seg.evaluate(self.into),
-            None => (self.target, Coef::ZERO),
-        }
-    }
-
     #[inline]
     fn active(&self, index: u8) -> Option<&FixedSegment> {
         if index < self.len {
             self.segments.get(usize::from(index))
         } else {
             None
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn split_multiply_is_exact() {
+        // Hand calculation, common practice: the products are compared with the
+        // 64-bit product at the corners and on a scattered sweep.
+        let corners = [
+            0_u32,
+            1,
+            0xffff,
+            0x1_0000,
+            0x7fff_ffff,
+            0x8000_0000,
+            u32::MAX,
+        ];
+        for a in corners {
+            for b in corners {
+                assert_eq!(mul_u32_u32_split(a, b), u64::from(a) * u64::from(b));
+            }
+        }
+        let mut x: u32 = 12345;
+        for _ in 0..100_000 {
+            x = x.wrapping_mul(1_664_525).wrapping_add(1_013_904_223);
+            let y = x.rotate_left(13) ^ 0x9e37_79b9;
+            assert_eq!(mul_u32_u32_split(x, y), u64::from(x) * u64::from(y));
+            let s = x as i32;
+            assert_eq!(mul_i32_u32(s, y), i64::from(s) * i64::from(y));
         }
     }
 }

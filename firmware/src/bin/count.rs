@@ -69,6 +69,8 @@ fn main() -> ! {
     }
     ramp_counts();
     swing_governor();
+    #[cfg(feature = "fixed")]
+    fixed_counts();
     exit(0)
 }
 
@@ -226,4 +228,63 @@ fn swing_governor() {
 #[panic_handler]
 fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
     exit(101)
+}
+
+/// The fixed-point tick: ramp step, ceiling clamp of the request and the
+/// interlock's comparisons (overspeed, following error), typical and worst.
+#[cfg(feature = "fixed")]
+fn fixed_counts() {
+    use swingdrive::fixed_point::{
+        following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
+    };
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(1.0), black_box(1.0)) else {
+        exit(2)
+    };
+    let (Ok(ceiling), Ok(over), Ok(follow)) = (
+        FixedCeiling::new(black_box(9.0), Reverse::Allowed),
+        FixedSpeedLimit::new("overspeed_rad_s", black_box(9.5)),
+        FixedSpeedLimit::new("following_tolerance_rad_s", black_box(0.3)),
+    ) else {
+        exit(2)
+    };
+    let ramp_at = |target: f32, ticks: u32| {
+        let Ok(mut ramp) = FixedRamp::new(limits, Reverse::Allowed, 1.0e-3) else {
+            exit(2)
+        };
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(target));
+        for _ in 0..ticks {
+            let _ = ramp.step();
+        }
+        ramp
+    };
+    // One fixed-point tick with the target unchanged: clamp the request,
+    // step, compare the measured speed with the ceiling and the command.
+    let tick = |ramp: &mut FixedRamp| {
+        let (request, limited) = ceiling.clamp(Speed::from_bits(black_box(8 << 16)));
+        let s = ramp.step();
+        let measured = Speed::from_bits(black_box(s.speed.to_bits() + 7));
+        let trip = over.exceeded_by(measured) || following_error_exceeds(measured, s.speed, follow);
+        (request, limited, s, trip)
+    };
+    let mut ramp = ramp_at(8.0, 200);
+    // 30: fixed-point tick (clamp + step + comparisons), first half of a segment
+    measure(30, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 400);
+    // 31: fixed-point tick, second half of a segment (evaluated from its end)
+    measure(31, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 8000);
+    // 32: fixed-point tick, 7.5 s into a 15.5 s hold (longest time since an anchor)
+    measure(32, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 499);
+    // 33: fixed-point tick crossing into the next segment
+    measure(33, || tick(&mut ramp));
+    let mut ramp = ramp_at(0.0, 0);
+    // 34: fixed-point tick at the target (plan complete)
+    measure(34, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 300);
+    // 35: fixed-point re-plan tick (new target through zero: f32 planning, soft-float on the M0) + tick
+    measure(35, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-8.0)));
+        tick(&mut ramp)
+    });
 }

@@ -152,9 +152,52 @@ fn swing_governor() -> f32 {
     decision.admitted_rad_s + governor.certificate().slack_per_s
 }
 
+/// Exercises the fixed-point tick path: ramp, player, clamp and comparisons.
+#[cfg(feature = "fixed")]
+fn fixed_point() -> f32 {
+    use swingdrive::fixed_point::{
+        following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
+    };
+    let mut acc = 0.0;
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(0.8), black_box(1.0)) else {
+        return acc;
+    };
+    let Ok(mut ramp) = FixedRamp::new(limits, Reverse::Allowed, black_box(1.0e-3)) else {
+        return acc;
+    };
+    let Ok(ceiling) = FixedCeiling::new(black_box(4.0), Reverse::Allowed) else {
+        return acc;
+    };
+    let Ok(over) = FixedSpeedLimit::new("overspeed_rad_s", black_box(4.2)) else {
+        return acc;
+    };
+    let Ok(follow) = FixedSpeedLimit::new("following_tolerance_rad_s", black_box(0.3)) else {
+        return acc;
+    };
+    let (request, _) = ceiling.clamp(Speed::from_bits(black_box(400_000)));
+    let _ = ramp.set_target(AngularSpeed::from_rad_per_s(request.to_num::<f32>()));
+    for _ in 0..black_box(100) {
+        let s = ramp.step();
+        let measured = Speed::from_bits(black_box(s.speed.to_bits() + 3));
+        if over.exceeded_by(measured) || following_error_exceeds(measured, s.speed, follow) {
+            acc += 1.0;
+        }
+        acc += s.acceleration.to_num::<f32>();
+    }
+    acc + ramp.setpoint().speed.to_num::<f32>()
+}
+
+#[cfg(not(feature = "fixed"))]
+fn fixed_point() -> f32 {
+    0.0
+}
+
 #[entry]
 fn main() -> ! {
-    let total = black_box(steady_state()) + black_box(ramp()) + black_box(swing_governor());
+    let total = black_box(steady_state())
+        + black_box(ramp())
+        + black_box(swing_governor())
+        + black_box(fixed_point());
     say(format_args!("no-panic image runs: {}", total.is_finite()));
     exit(0)
 }
