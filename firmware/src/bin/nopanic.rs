@@ -19,6 +19,7 @@ use swingdrive_firmware::{exit, say};
 
 /// Exercises the steady-state physics: every public function of the
 /// geometry, units and commissioning modules that firmware would call.
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn steady_state() -> f32 {
     let mut acc = 0.0;
     let suspension = if black_box(true) {
@@ -61,6 +62,7 @@ fn steady_state() -> f32 {
 
 /// Exercises the speed ramp: every per-tick and planning entry point
 /// (limits, targets, steps, re-seed, queries, sampling, plans).
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn ramp() -> f32 {
     let mut acc = 0.0;
     let reverse = if black_box(true) {
@@ -121,6 +123,7 @@ fn ramp() -> f32 {
 
 /// Exercises the swing governor's construction and per-tick path (estimator
 /// step, sensor correction, decision).
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn swing_governor() -> f32 {
     use swingdrive::{GovernorInput, GovernorParams, RequestGovernor, Setpoint, SwingGovernor};
     let suspension = if black_box(true) {
@@ -154,6 +157,7 @@ fn swing_governor() -> f32 {
 
 /// Exercises the fixed-point tick path: ramp, player, clamp and comparisons.
 #[cfg(feature = "fixed")]
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn fixed_point() -> f32 {
     use swingdrive::fixed_point::{
         following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
@@ -188,6 +192,7 @@ fn fixed_point() -> f32 {
 }
 
 #[cfg(not(feature = "fixed"))]
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn fixed_point() -> f32 {
     0.0
 }
