@@ -342,8 +342,12 @@ pub fn run_cycle(
     let mut events = Vec::new();
     let mut last_percent = u32::MAX;
     // After the program's end the operator switches the ride off once it has
-    // stood still for twice the interlock's standstill confirmation.
+    // stood still for twice the interlock's standstill confirmation, and at
+    // least 10 s (two rest-pendulum periods of a 6 m link: the last step's
+    // residual swing is measured meanwhile).
     let mut still_ticks = 0_u32;
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    let settle_ticks = (2 * u32::from(c.standstill_ticks)).max((10.0 / c.tick_s) as u32);
     let trace = run_loop(
         &setup,
         |sensors, t, dt| {
@@ -354,7 +358,7 @@ pub fn run_cycle(
                 } else {
                     0
                 };
-                sensors.run_enable = still_ticks <= 2 * u32::from(c.standstill_ticks);
+                sensors.run_enable = still_ticks <= settle_ticks;
             }
             let sensors = &sensors;
             let index = runner.step_index();
@@ -573,4 +577,28 @@ pub fn render_cycle_svg(
             },
         ],
     )
+}
+
+/// The swing governor's parameters for a ride file, from its `[interlock]`
+/// table: the certified angle, the length band (the table's longest length
+/// and, as far below the nominal length, its mirror), the certified jerk and
+/// a 100 Hz estimator, the admitted target's rate at twice the certified
+/// acceleration (what a played table's request can need); speed uncertainty, rest hold, margin and sensor tolerance as
+/// in [`GovernorParams::demo`]. `None`
+/// without an `[interlock]` table.
+#[must_use]
+pub fn governor_for(ride: &RideFile) -> Option<GovernorParams> {
+    let c = *ride.interlock?.config();
+    let nominal = ride.geometry.length_m();
+    let band = (c.length_max_m - nominal).max(0.0);
+    Some(GovernorParams {
+        length_min_m: (nominal - band).max(0.5 * nominal),
+        length_max_m: c.length_max_m.max(nominal),
+        // The admitted target may move as fast as a table's request does: the
+        // table's slope plus the rate of its braking lead a·|a|/(2j), at
+        // most 2·a_max (hand calculation: d/dt[a|a|/(2j)] = |a|·ȧ/j ≤ a_max).
+        // A designed table is then followed as it is wherever it is certified.
+        target_rate_rad_s2: (2.0 * c.max_acceleration_rad_s2).min(10.0),
+        ..GovernorParams::demo(&ride.geometry, c.certified_angle_deg, c.max_jerk_rad_s3)
+    })
 }
