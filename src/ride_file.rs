@@ -265,14 +265,15 @@ struct RawDrive {
     coast_viscous_per_s: Option<Spanned<f64>>,
 }
 
-/// Turns byte offsets into line numbers and builds errors.
-struct Locator<'a> {
-    source: &'a str,
-    text: &'a str,
+/// Turns byte offsets into line numbers and builds errors (shared with the
+/// ride-cycle program file).
+pub(crate) struct Locator<'a> {
+    pub(crate) source: &'a str,
+    pub(crate) text: &'a str,
 }
 
 impl Locator<'_> {
-    fn line_of(&self, offset: usize) -> usize {
+    pub(crate) fn line_of(&self, offset: usize) -> usize {
         let end = offset.min(self.text.len());
         self.text
             .as_bytes()
@@ -281,7 +282,12 @@ impl Locator<'_> {
             + 1
     }
 
-    fn error(&self, offset: Option<usize>, field: Option<&str>, message: String) -> RideFileError {
+    pub(crate) fn error(
+        &self,
+        offset: Option<usize>,
+        field: Option<&str>,
+        message: String,
+    ) -> RideFileError {
         RideFileError {
             source: self.source.to_owned(),
             line: offset.map(|o| self.line_of(o)),
@@ -292,7 +298,7 @@ impl Locator<'_> {
 
     /// Checks a value with `check`, reporting a refusal at the value's line
     /// under `table.key`.
-    fn value<T>(
+    pub(crate) fn value<T>(
         &self,
         table: &str,
         value: &Spanned<f64>,

@@ -687,6 +687,12 @@ impl<const N: usize> Interlock<N> {
         self.command
     }
 
+    /// Time until the ramp reaches its current target, s (0 once there).
+    #[must_use]
+    pub fn ramp_remaining_s(&self) -> f32 {
+        self.ramp.remaining_s()
+    }
+
     /// The event record.
     #[must_use]
     pub const fn events(&self) -> &EventLog<N> {

@@ -6,6 +6,7 @@
 
 use cortex_m_rt::entry;
 use swingdrive_firmware::checks::{self, Tally};
+use swingdrive_firmware::ramp_checks;
 use swingdrive_firmware::{exit, say};
 
 #[entry]
@@ -13,6 +14,7 @@ fn main() -> ! {
     let mut tally = Tally::default();
     checks::kernels(&mut tally);
     checks::steady_state(&mut tally);
+    ramp_checks::ramp(&mut tally);
     say(format_args!(
         "{} of {} numeric results bit-identical to the host's f32",
         tally.bit_identical, tally.compared

@@ -8,7 +8,10 @@
 
 use core::hint::black_box;
 use cortex_m_rt::entry;
-use swingdrive::{Angle, AngularSpeed, Gravity, RideGeometry, Suspension};
+use swingdrive::{
+    Angle, AngularSpeed, Gravity, Plan, RampLimits, ReseedReason, Reverse, RideGeometry, SpeedRamp,
+    Suspension,
+};
 use swingdrive_firmware::exit;
 
 /// Marks the start of measurement `id` (read from r0 in the trace).
@@ -64,7 +67,160 @@ fn main() -> ! {
             near_axis.angle_for_speed(AngularSpeed::from_rad_per_s(black_box(w)))
         });
     }
+    ramp_counts();
+    swing_governor();
     exit(0)
+}
+
+/// A ramp (demo limits 0.5 rad/s² up, 1 rad/s² down, 1 rad/s³) stepped at
+/// 1 ms toward `target` for `ticks` ticks.
+fn ramp_at(target: f32, ticks: u32) -> SpeedRamp {
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(1.0), black_box(1.0)) else {
+        exit(2)
+    };
+    let mut ramp = SpeedRamp::new(limits, Reverse::Allowed);
+    let _ = ramp.set_target(AngularSpeed::from_rad_per_s(target));
+    for _ in 0..ticks {
+        let _ = ramp.step(1.0e-3);
+    }
+    ramp
+}
+
+/// Ramp step (target unchanged) and re-planning ticks, typical and worst.
+fn ramp_counts() {
+    let dt = black_box(1.0e-3_f32);
+    // 0 → 8 rad/s: segments of 0.5 s (jerk), 15.5 s (hold), 0.5 s (jerk).
+    let mut ramp = ramp_at(8.0, 200);
+    // 10: ramp step, 1 ms, first half of a segment (typical)
+    measure(10, || ramp.step(dt));
+    let mut ramp = ramp_at(8.0, 400);
+    // 11: ramp step, 1 ms, second half of a segment (evaluated from its end)
+    measure(11, || ramp.step(dt));
+    let mut ramp = ramp_at(8.0, 499);
+    // 12: ramp step, 1 ms, crossing into the next segment
+    measure(12, || ramp.step(dt));
+    let mut ramp = ramp_at(0.25, 0);
+    // 13: ramp step, 1 s tick across a whole two-segment plan to the target
+    measure(13, || ramp.step(black_box(1.0)));
+    // 14: ramp step at the target (plan complete)
+    measure(14, || ramp.step(dt));
+    let mut ramp = ramp_at(8.0, 300);
+    // 15: re-plan tick: set_target (new target, 4 rad/s) + step
+    measure(15, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(4.0)));
+        ramp.step(dt)
+    });
+    let mut ramp = ramp_at(8.0, 300);
+    // 16: re-plan tick through zero speed (accelerating up, target -8 rad/s: brake, cross, 4 segments) + step
+    measure(16, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-8.0)));
+        ramp.step(dt)
+    });
+    // 17: set_target with the same target (no re-plan) + step
+    measure(17, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-8.0)));
+        ramp.step(dt)
+    });
+    let mut ramp = ramp_at(8.0, 300);
+    // 18: reseed from a measured speed (drive fell behind) + step
+    measure(18, || {
+        let _ = ramp.reseed(
+            AngularSpeed::from_rad_per_s(black_box(0.01)),
+            ReseedReason::DriveFellBehind,
+        );
+        ramp.step(dt)
+    });
+    // Plan::replan from the states of the segment-capacity test (every
+    // crossing profile after a ramp-to-zero prefix): the deepest planning paths.
+    let states: [(f32, f32, f32, f32, f32); 6] = [
+        (1.0, 0.5, 0.3, 0.4, -8.0),
+        (0.5, 1.0, 0.3, 0.4, -8.0),
+        (1.0, 0.5, 5.0, -0.6, -8.0),
+        (0.5, 1.0, 5.0, -0.9, -8.0),
+        (0.5, 1.0, 0.05, -0.9, -8.0),
+        (0.5, 1.0, 5.0, -3.0, -8.0),
+    ];
+    let mut plan = Plan::new(
+        &RampLimits::new(1.0, 1.0, 1.0).unwrap_or_else(|_| exit(2)),
+        Reverse::Allowed,
+        AngularSpeed::ZERO,
+        0.0,
+        AngularSpeed::ZERO,
+    )
+    .unwrap_or_else(|_| exit(2));
+    for (up, down, v0, a0, vt) in states {
+        let Ok(limits) = RampLimits::new(black_box(up), black_box(down), black_box(1.0)) else {
+            exit(2)
+        };
+        // 19: Plan::replan, deepest paths (six states, one count each)
+        measure(19, || {
+            plan.replan(
+                &limits,
+                Reverse::Allowed,
+                AngularSpeed::from_rad_per_s(black_box(v0)),
+                black_box(a0),
+                AngularSpeed::from_rad_per_s(black_box(vt)),
+            )
+        });
+    }
+}
+
+/// Swing governor (src/protection): one 100 Hz tick in which the estimator
+/// steps its three length models and the governor decides, on the study's
+/// chain ride (r0 4 m, L 6.5 m ± 2 %, 50° certified), part-way up a ramp.
+fn swing_governor() {
+    use swingdrive::{
+        GovernorInput, GovernorParams, RampLimits, RequestGovernor, Reverse, SpeedRamp,
+        SwingGovernor,
+    };
+    let Ok(ride) = RideGeometry::new(
+        black_box(4.0),
+        black_box(6.5),
+        Suspension::Chain,
+        Gravity::STANDARD,
+    ) else {
+        return;
+    };
+    let Ok(mut governor) = SwingGovernor::new(&ride, &GovernorParams::demo(&ride, 50.0, 0.05))
+    else {
+        return;
+    };
+    let Ok(limits) = RampLimits::new(0.1, 0.1, 0.05) else {
+        return;
+    };
+    let mut ramp = SpeedRamp::new(limits, Reverse::Forbidden);
+    governor.confirm_rest(0.0);
+    let mut setpoint = ramp.setpoint();
+    let request = black_box(1.1_f32);
+    let input = |setpoint: swingdrive::Setpoint| GovernorInput {
+        clamped_request_rad_s: request,
+        commanded: setpoint,
+        measured_rad_s: Some(setpoint.speed.rad_per_s()),
+        dt_s: black_box(0.01),
+        stopping: false,
+    };
+    // A few ticks up the ramp under the governor, unmeasured (kept short:
+    // every instruction of the run goes through the emulator's trace).
+    for _ in 0..10 {
+        let decision = governor.govern(&input(setpoint));
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(decision.admitted_rad_s));
+        if let Ok(s) = ramp.step(0.01) {
+            setpoint = s;
+        }
+    }
+    let tick = input(setpoint);
+    // 4: swing governor tick: estimator step (3 lengths, chain) + decision
+    measure(4, || governor.govern(black_box(&tick)));
+    let v = setpoint.speed.rad_per_s();
+    // 5: swing governor, one certificate evaluation (3 lengths): a decision makes 2 to 4
+    measure(5, || {
+        governor.slack(
+            black_box(v),
+            black_box(v),
+            black_box(setpoint.acceleration_rad_s2),
+            black_box(1.0),
+        )
+    });
 }
 
 #[panic_handler]

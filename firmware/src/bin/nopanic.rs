@@ -12,7 +12,8 @@
 use core::hint::black_box;
 use cortex_m_rt::entry;
 use swingdrive::{
-    commissioning, Angle, AngularSpeed, DriveScale, GearRatio, Gravity, RideGeometry, Suspension,
+    commissioning, Angle, AngularSpeed, DriveScale, GearRatio, Gravity, Plan, RampLimits,
+    ReseedReason, Reverse, RideGeometry, SpeedRamp, Suspension,
 };
 use swingdrive_firmware::{exit, say};
 
@@ -58,9 +59,102 @@ fn steady_state() -> f32 {
     acc
 }
 
+/// Exercises the speed ramp: every per-tick and planning entry point
+/// (limits, targets, steps, re-seed, queries, sampling, plans).
+fn ramp() -> f32 {
+    let mut acc = 0.0;
+    let reverse = if black_box(true) {
+        Reverse::Allowed
+    } else {
+        Reverse::Forbidden
+    };
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(0.8), black_box(1.0)) else {
+        return acc;
+    };
+    let mut ramp = SpeedRamp::new(limits, reverse);
+    let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(3.0)));
+    for _ in 0..black_box(100) {
+        acc += ramp
+            .step(black_box(1.0e-3))
+            .map_or(0.0, |s| s.speed.rad_per_s());
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-2.0)));
+    }
+    acc += ramp
+        .reseed(
+            AngularSpeed::from_rad_per_s(black_box(0.1)),
+            ReseedReason::CoastingTakeover,
+        )
+        .map_or(0.0, |s| s.acceleration_rad_s2);
+    if let Ok(steeper) = RampLimits::new(black_box(1.0), black_box(2.0), black_box(4.0)) {
+        ramp.set_limits(steeper);
+    }
+    acc += ramp.remaining_s();
+    acc += ramp
+        .predict(black_box(0.5))
+        .map_or(0.0, |s| s.speed.rad_per_s());
+    acc += ramp
+        .sample::<8>(black_box(0.25))
+        .map_or(0.0, |s| s.points.len() as f32);
+    acc += ramp.setpoint().jerk_rad_s3;
+    if let Ok(mut plan) = Plan::new(
+        &limits,
+        reverse,
+        AngularSpeed::from_rad_per_s(black_box(1.0)),
+        black_box(0.2),
+        AngularSpeed::from_rad_per_s(black_box(-1.0)),
+    ) {
+        acc += plan.duration_s();
+        acc += plan
+            .state_at(black_box(0.3))
+            .map_or(0.0, |s| s.speed.rad_per_s());
+        let _ = plan.replan(
+            &limits,
+            reverse,
+            AngularSpeed::from_rad_per_s(black_box(2.0)),
+            black_box(-0.1),
+            AngularSpeed::from_rad_per_s(black_box(0.0)),
+        );
+        acc += plan.segments().iter().map(|s| s.duration_s()).sum::<f32>();
+    }
+    acc
+}
+
+/// Exercises the swing governor's construction and per-tick path (estimator
+/// step, sensor correction, decision).
+fn swing_governor() -> f32 {
+    use swingdrive::{GovernorInput, GovernorParams, RequestGovernor, Setpoint, SwingGovernor};
+    let suspension = if black_box(true) {
+        Suspension::Chain
+    } else {
+        Suspension::Rod
+    };
+    let Ok(ride) = RideGeometry::new(
+        black_box(4.0),
+        black_box(6.5),
+        suspension,
+        Gravity::STANDARD,
+    ) else {
+        return 0.0;
+    };
+    let params = GovernorParams::demo(&ride, black_box(50.0), black_box(0.05));
+    let Ok(mut governor) = SwingGovernor::new(&ride, &params) else {
+        return 0.0;
+    };
+    let _ = governor.confirm_rest(black_box(0.0));
+    let _ = governor.correct(black_box(0.01), black_box(0.0));
+    let decision = governor.govern(&GovernorInput {
+        clamped_request_rad_s: black_box(1.0),
+        commanded: Setpoint::at_target(AngularSpeed::from_rad_per_s(black_box(0.2))),
+        measured_rad_s: black_box(Some(0.2)),
+        dt_s: black_box(0.01),
+        stopping: black_box(false),
+    });
+    decision.admitted_rad_s + governor.certificate().slack_per_s
+}
+
 #[entry]
 fn main() -> ! {
-    let total = black_box(steady_state());
+    let total = black_box(steady_state()) + black_box(ramp()) + black_box(swing_governor());
     say(format_args!("no-panic image runs: {}", total.is_finite()));
     exit(0)
 }

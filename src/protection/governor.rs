@@ -1,0 +1,414 @@
+//! The swing governor: a reference governor between the interlock's speed
+//! clamp and its ramp that admits, each estimator step, the largest change of
+//! the ramp's target toward the request for which the swing certificate holds
+//! on every length of the tolerance band.
+//!
+//! The certificate for a candidate target w′ follows the ramp's own plan: the
+//! braking of the present acceleration at the jerk limit (to
+//! v_ext = v + a|a|/(2j)), then the move from v_ext to w′, then constant speed
+//! for ever. Along it √S grows at most by the envelope's growth integral;
+//! the seat stays inside the certified cone while √S stays below the room
+//! √T_cap(ω) (docs/dynamic_protection.md). At constant speed after the move
+//! the Jacobi integral is conserved, so S and the room stay put.
+
+use crate::error::{check_range, ParamError};
+use crate::geometry::RideGeometry;
+use crate::request_governor::{GovernorDecision, GovernorInput, GovernorStatus, RequestGovernor};
+use crate::units::Angle;
+
+use super::envelope::SwingEnvelope;
+use super::estimator::{EstimatorFault, SwingEstimator, LENGTH_MODELS, MAX_ADVANCE_S};
+
+/// Parameters of the swing governor.
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct GovernorParams {
+    /// Certified largest angle of the link from vertical, degrees, in (0, 85].
+    pub certified_angle_deg: f32,
+    /// Shortest effective length of the tolerance band, m (≤ the nominal).
+    pub length_min_m: f32,
+    /// Longest effective length of the tolerance band, m (≥ the nominal).
+    pub length_max_m: f32,
+    /// Bound on |measured − true| shaft speed plus the drive's following
+    /// error, rad/s, in [0, 1].
+    pub speed_uncertainty_rad_s: f32,
+    /// The ramp's jerk limit, rad/s³ (for the braking of the acceleration),
+    /// in (0, 100].
+    pub jerk_rad_s3: f32,
+    /// Estimator and decision period, s, in [0.001, 0.05].
+    pub estimator_period_s: f32,
+    /// Standstill time after which the swing counts as died out, s, in [0, 3600].
+    pub rest_hold_s: f32,
+    /// Margin on √S kept free, 1/s, in [0, 1] (covers integration and
+    /// rounding error; docs/dynamic_protection.md).
+    pub margin_per_s: f32,
+    /// Largest disagreement with a seat-angle sensor, degrees, in (0, 45].
+    pub sensor_tolerance_deg: f32,
+    /// Largest rate of change of the admitted target, rad/s², in (0, 10]:
+    /// the explicit rate of the reference governor. Well below the ramp's
+    /// acceleration limit, so that the governor's own moves leave little
+    /// residual swing (an undamped estimate never forgets it).
+    pub target_rate_rad_s2: f32,
+}
+
+impl GovernorParams {
+    /// Defaults for `geometry` at `certified_angle_deg` and ramp jerk
+    /// `jerk_rad_s3`: length band ±2 %, speed uncertainty 0.005 rad/s, 100 Hz,
+    /// 120 s rest hold, margin 0.01/s, sensor tolerance 5°, target rate
+    /// 0.02 rad/s². Demo values: the
+    /// ride's own figures come from its certification and commissioning.
+    #[must_use]
+    pub fn demo(geometry: &RideGeometry, certified_angle_deg: f32, jerk_rad_s3: f32) -> Self {
+        Self {
+            certified_angle_deg,
+            length_min_m: 0.98 * geometry.length_m(),
+            length_max_m: 1.02 * geometry.length_m(),
+            speed_uncertainty_rad_s: 0.005,
+            jerk_rad_s3,
+            estimator_period_s: 0.01,
+            rest_hold_s: 120.0,
+            margin_per_s: 0.01,
+            sensor_tolerance_deg: 5.0,
+            target_rate_rad_s2: 0.02,
+        }
+    }
+}
+
+/// What the last decision found (for logs and displays).
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Certificate {
+    /// Slack of the admitted target: room left minus the grown √S, 1/s,
+    /// smallest over the three lengths (≥ the margin when certified).
+    pub slack_per_s: f32,
+    /// Whether the admitted target is certified.
+    pub certified: bool,
+    /// Slack of a stop to zero from the present state (the same bound; a
+    /// negative value says the bound cannot vouch for a stop from here).
+    pub stop_slack_per_s: f32,
+    /// Largest swing energy bound √S over the lengths, 1/s.
+    pub swing_per_s: f32,
+}
+
+/// The swing governor (see the module documentation).
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct SwingGovernor {
+    envelopes: [SwingEnvelope; LENGTH_MODELS],
+    estimator: SwingEstimator,
+    params: GovernorParams,
+    sensor_tolerance_rad: f32,
+    /// The target admitted at the last decision, rad/s.
+    admitted: f32,
+    last: Certificate,
+}
+
+impl SwingGovernor {
+    /// A governor for `geometry` (its length is the nominal one).
+    ///
+    /// Builds the three envelopes (bounded work, see [`SwingEnvelope::new`]).
+    ///
+    /// # Errors
+    /// [`ParamError`] naming the refused parameter.
+    pub fn new(geometry: &RideGeometry, params: &GovernorParams) -> Result<Self, ParamError> {
+        let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
+        let l = geometry.length_m();
+        let l_min = check_range("length_min_m", params.length_min_m, 0.0, l)?;
+        let l_max = check_range("length_max_m", params.length_max_m, l, 100.0)?;
+        if l_min <= 0.0 {
+            return Err(ParamError::NotPositive("length_min_m"));
+        }
+        check_range(
+            "speed_uncertainty_rad_s",
+            params.speed_uncertainty_rad_s,
+            0.0,
+            1.0,
+        )?;
+        let jerk = check_range("jerk_rad_s3", params.jerk_rad_s3, 0.0, 100.0)?;
+        if jerk <= 0.0 {
+            return Err(ParamError::NotPositive("jerk_rad_s3"));
+        }
+        check_range("estimator_period_s", params.estimator_period_s, 0.001, 0.05)?;
+        check_range("rest_hold_s", params.rest_hold_s, 0.0, 3600.0)?;
+        check_range("margin_per_s", params.margin_per_s, 0.0, 1.0)?;
+        let tol = check_range(
+            "sensor_tolerance_deg",
+            params.sensor_tolerance_deg,
+            0.0,
+            45.0,
+        )?;
+        if tol <= 0.0 {
+            return Err(ParamError::NotPositive("sensor_tolerance_deg"));
+        }
+        let rate = check_range("target_rate_rad_s2", params.target_rate_rad_s2, 0.0, 10.0)?;
+        if rate <= 0.0 {
+            return Err(ParamError::NotPositive("target_rate_rad_s2"));
+        }
+        let certified = Angle::from_deg(deg);
+        let envelopes = [
+            SwingEnvelope::new(&geometry.with_length(l_min)?, certified)?,
+            SwingEnvelope::new(geometry, certified)?,
+            SwingEnvelope::new(&geometry.with_length(l_max)?, certified)?,
+        ];
+        let models = [
+            *envelopes[0].model(),
+            *envelopes[1].model(),
+            *envelopes[2].model(),
+        ];
+        Ok(Self {
+            estimator: SwingEstimator::new(models, params.estimator_period_s, params.rest_hold_s),
+            envelopes,
+            params: *params,
+            sensor_tolerance_rad: tol.to_radians(),
+            admitted: 0.0,
+            last: Certificate {
+                slack_per_s: 0.0,
+                certified: false,
+                stop_slack_per_s: 0.0,
+                swing_per_s: 0.0,
+            },
+        })
+    }
+
+    /// Declares the seats at rest (see [`SwingEstimator::confirm_rest`]).
+    pub fn confirm_rest(&mut self, measured_rad_s: f32) -> bool {
+        let ok = self.estimator.confirm_rest(measured_rad_s);
+        if ok {
+            self.admitted = 0.0;
+        }
+        ok
+    }
+
+    /// Corrects the estimate from a seat-angle sensor (radial, tangential,
+    /// rad); call before [`RequestGovernor::govern`] on ticks with a reading.
+    ///
+    /// # Errors
+    /// [`EstimatorFault`]; the next decision then reports a fault.
+    pub fn correct(&mut self, radial_rad: f32, tangential_rad: f32) -> Result<f32, EstimatorFault> {
+        self.estimator
+            .correct(radial_rad, tangential_rad, self.sensor_tolerance_rad)
+    }
+
+    /// The estimator.
+    #[must_use]
+    pub const fn estimator(&self) -> &SwingEstimator {
+        &self.estimator
+    }
+
+    /// The envelopes (shortest, nominal, longest length).
+    #[must_use]
+    pub const fn envelopes(&self) -> &[SwingEnvelope; LENGTH_MODELS] {
+        &self.envelopes
+    }
+
+    /// What the last decision found.
+    #[must_use]
+    pub const fn certificate(&self) -> Certificate {
+        self.last
+    }
+
+    /// The highest speed any length of the band can be certified at, rad/s
+    /// (the smallest of the top speeds).
+    #[must_use]
+    pub fn top_rad_s(&self) -> f32 {
+        self.envelopes
+            .iter()
+            .map(SwingEnvelope::top_rad_s)
+            .fold(f32::INFINITY, f32::min)
+    }
+
+    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
+    fn steepest_growth(&self) -> f32 {
+        self.envelopes
+            .iter()
+            .map(SwingEnvelope::steepest_growth)
+            .fold(0.0, f32::max)
+    }
+
+    /// Slack of the path from the commanded state (`v`, `a`) through the
+    /// braking point to `target`, smallest over the lengths, 1/s.
+    #[must_use]
+    pub fn slack(&self, measured: f32, v: f32, a: f32, target: f32) -> f32 {
+        let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
+        let u = self.params.speed_uncertainty_rad_s;
+        let mut slack = f32::INFINITY;
+        for (env, state) in self.envelopes.iter().zip(self.estimator.states().iter()) {
+            let s0 = crate::math::sqrt(env.swing_energy(state, measured));
+            // The measured and the commanded speed may differ, and the true
+            // speed from both: count the gap and the uncertainty once, as
+            // travel already made. The room is read u higher throughout.
+            let gap =
+                libm::fabsf(env.growth_to(libm::fabsf(measured)) - env.growth_to(libm::fabsf(v)));
+            let spread = env.growth_to(libm::fabsf(v) + u) - env.growth_to(libm::fabsf(v));
+            let mut r = s0 + gap + spread;
+            let mut s = env.room(libm::fabsf(v) + u) - r;
+            for (from, to) in [(v, v_ext), (v_ext, target)] {
+                s = s.min(piece(env, &mut r, from, to, u));
+            }
+            slack = slack.min(s);
+        }
+        if slack.is_nan() {
+            f32::NEG_INFINITY
+        } else {
+            slack
+        }
+    }
+
+    fn decide(&mut self, input: &GovernorInput, measured: f32) -> GovernorDecision {
+        let v = input.commanded.speed.rad_per_s();
+        let a = input.commanded.acceleration_rad_s2;
+        let request = input.clamped_request_rad_s;
+        let margin = self.params.margin_per_s;
+        let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
+        let stop_slack = self.slack(measured, v, a, 0.0);
+        let swing = self
+            .envelopes
+            .iter()
+            .zip(self.estimator.states().iter())
+            .map(|(e, s)| crate::math::sqrt(e.swing_energy(s, measured)))
+            .fold(0.0, f32::max);
+        let record = |admitted: f32, slack: f32, certified: bool, last: &mut Certificate| {
+            *last = Certificate {
+                slack_per_s: slack,
+                certified,
+                stop_slack_per_s: stop_slack,
+                swing_per_s: swing,
+            };
+            admitted
+        };
+        if !request.is_finite() {
+            let held = self.admitted;
+            let s = self.slack(measured, v, a, held);
+            let admitted = record(held, s, s >= margin, &mut self.last);
+            return GovernorDecision {
+                admitted_rad_s: admitted,
+                status: GovernorStatus::Restricting,
+            };
+        }
+        // Explicit rate of the admitted target: at most `target_rate` times
+        // the decision period per decision, toward the request.
+        let held = self.admitted;
+        let reach = self.params.target_rate_rad_s2 * self.params.estimator_period_s;
+        let trial = held + (request - held).clamp(-reach, reach);
+        let s_trial = self.slack(measured, v, a, trial);
+        // A move away from standstill must leave enough slack for the first
+        // step back down to be certified too (the bound charges a step down
+        // at most ½G per rad/s, and the room grows back as the speed falls),
+        // so that lowering is never blocked by the governor's own ascent.
+        let lowering = libm::fabsf(trial) < libm::fabsf(held);
+        let reserve = if lowering {
+            0.0
+        } else {
+            2.0 * reach * self.steepest_growth()
+        };
+        if s_trial >= margin + reserve {
+            self.admitted = record(trial, s_trial, true, &mut self.last);
+            if trial == request {
+                return GovernorDecision {
+                    admitted_rad_s: request,
+                    status: GovernorStatus::Free,
+                };
+            }
+        } else {
+            let s_held = self.slack(measured, v, a, held);
+            if s_held >= margin {
+                self.admitted = record(held, s_held, true, &mut self.last);
+            } else {
+                // Nothing certified (after a disturbance the bound did not
+                // cover): the manoeuvre with the least examined growth is
+                // braking the acceleration and holding the speed reached.
+                let s_ext = self.slack(measured, v, a, v_ext);
+                self.admitted = record(v_ext, s_ext, false, &mut self.last);
+            }
+        }
+        GovernorDecision {
+            admitted_rad_s: self.admitted,
+            status: GovernorStatus::Restricting,
+        }
+    }
+}
+
+/// One piece of the path from signed speed `from` to `to`: adds its growth to
+/// `r` and returns the smallest slack along it.
+fn piece(env: &SwingEnvelope, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
+    // Split at zero when the direction of rotation changes.
+    if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
+        let first = magnitude_piece(env, r, libm::fabsf(from), 0.0, u);
+        let second = magnitude_piece(env, r, 0.0, libm::fabsf(to), u);
+        return first.min(second);
+    }
+    magnitude_piece(env, r, libm::fabsf(from), libm::fabsf(to), u)
+}
+
+fn magnitude_piece(env: &SwingEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -> f32 {
+    if m2 >= m1 {
+        // Up: √S grows, the room shrinks; the end is the binding point.
+        *r += env.growth_to(m2) - env.growth_to(m1);
+        env.room(m2 + u) - *r
+    } else {
+        // Down: the room grows back as the speed falls, √S may grow too;
+        // checked cell by cell.
+        let slack = env.down_slack(*r, m2, m1, u);
+        *r += env.growth_to(m1) - env.growth_to(m2);
+        slack
+    }
+}
+
+impl RequestGovernor for SwingGovernor {
+    fn govern(&mut self, input: &GovernorInput) -> GovernorDecision {
+        let Some(measured) = input.measured_rad_s else {
+            return fault(input);
+        };
+        let dt = input.dt_s.min(MAX_ADVANCE_S);
+        let stepped = match self.estimator.advance(measured, dt) {
+            Ok(stepped) => stepped,
+            Err(EstimatorFault::RestNotConfirmed | EstimatorFault::NotFinite)
+                if libm::fabsf(measured) <= super::estimator::REST_SPEED_RAD_S
+                    && !self.estimator.is_confirmed() =>
+            {
+                // Standing still, swing unknown: nothing may start.
+                self.admitted = 0.0;
+                return GovernorDecision {
+                    admitted_rad_s: 0.0,
+                    status: GovernorStatus::Restricting,
+                };
+            }
+            Err(_) => return fault(input),
+        };
+        if !self.estimator.is_confirmed() {
+            self.admitted = 0.0;
+            return GovernorDecision {
+                admitted_rad_s: 0.0,
+                status: GovernorStatus::Restricting,
+            };
+        }
+        if input.stopping {
+            self.admitted = 0.0;
+            return GovernorDecision {
+                admitted_rad_s: 0.0,
+                status: GovernorStatus::Free,
+            };
+        }
+        if stepped {
+            return self.decide(input, measured);
+        }
+        let status = if self.admitted == input.clamped_request_rad_s {
+            GovernorStatus::Free
+        } else {
+            GovernorStatus::Restricting
+        };
+        GovernorDecision {
+            admitted_rad_s: self.admitted,
+            status,
+        }
+    }
+}
+
+/// The verdict when the governor cannot vouch for the seats: the interlock
+/// trips on it; the target named is the braking of the acceleration.
+fn fault(input: &GovernorInput) -> GovernorDecision {
+    GovernorDecision {
+        admitted_rad_s: input.commanded.speed.rad_per_s(),
+        status: GovernorStatus::Fault,
+    }
+}
