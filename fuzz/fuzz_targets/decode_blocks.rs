@@ -23,7 +23,11 @@ fn crc32(data: &[u8]) -> u32 {
     for &byte in data {
         crc ^= u32::from(byte);
         for _ in 0..8 {
-            crc = if crc & 1 != 0 { (crc >> 1) ^ 0xEDB8_8320 } else { crc >> 1 };
+            crc = if crc & 1 != 0 {
+                (crc >> 1) ^ 0xEDB8_8320
+            } else {
+                crc >> 1
+            };
         }
     }
     !crc
@@ -31,7 +35,11 @@ fn crc32(data: &[u8]) -> u32 {
 
 fn params(bytes: &[u8]) {
     if let Ok(p) = SafetyParams::from_bytes(bytes) {
-        assert_eq!(&p.to_bytes()[..], bytes, "parameter block does not round-trip");
+        assert_eq!(
+            &p.to_bytes()[..],
+            bytes,
+            "parameter block does not round-trip"
+        );
         assert_eq!(p.stamp(), crc32(&bytes[..bytes.len() - 4]));
         let c = p.ceiling().ceiling_rad_s();
         assert!(c.is_finite() && c > 0.0);

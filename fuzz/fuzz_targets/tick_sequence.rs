@@ -49,8 +49,16 @@ fn value(kind: u8, raw: u8, command: f32) -> f32 {
         0..=3 => command,
         4 => command + (f32::from(raw) - 128.0) / 256.0,
         5 => (f32::from(raw) - 64.0) / 32.0,
-        6 => [f32::NAN, f32::INFINITY, f32::NEG_INFINITY, 1.0e30, -1.0e30, f32::MAX, -0.0, 0.0]
-            [usize::from(raw % 8)],
+        6 => [
+            f32::NAN,
+            f32::INFINITY,
+            f32::NEG_INFINITY,
+            1.0e30,
+            -1.0e30,
+            f32::MAX,
+            -0.0,
+            0.0,
+        ][usize::from(raw % 8)],
         _ => f32::from_bits(u32::from(raw).wrapping_mul(0x0101_0101)),
     }
 }
@@ -59,7 +67,11 @@ fuzz_target!(|data: &[u8]| {
     let Some((&setup, data)) = data.split_first() else {
         return;
     };
-    let reverse = if setup & 1 != 0 { Reverse::Allowed } else { Reverse::Forbidden };
+    let reverse = if setup & 1 != 0 {
+        Reverse::Allowed
+    } else {
+        Reverse::Forbidden
+    };
     let c = config(reverse, setup & 2 != 0, setup & 4 != 0);
     let params = SafetyParams::new(c).unwrap();
     let ceiling = params.ceiling().ceiling_rad_s();
@@ -71,8 +83,9 @@ fuzz_target!(|data: &[u8]| {
     let mut reset_before = false;
     let mut last_valid = f32::NAN;
     for chunk in data.chunks_exact(8) {
-        let [req_kind, req_raw, m_kind, m_raw, m2_kind, flags, dt_raw, repeat] =
-            [chunk[0], chunk[1], chunk[2], chunk[3], chunk[4], chunk[5], chunk[6], chunk[7]];
+        let [req_kind, req_raw, m_kind, m_raw, m2_kind, flags, dt_raw, repeat] = [
+            chunk[0], chunk[1], chunk[2], chunk[3], chunk[4], chunk[5], chunk[6], chunk[7],
+        ];
         for _ in 0..=(repeat % 32) {
             let request = value(req_kind, req_raw, f32::from(req_raw) / 64.0 - 1.0);
             let m1 = value(m_kind, m_raw, previous);
