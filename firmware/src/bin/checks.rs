@@ -6,8 +6,8 @@
 
 use cortex_m_rt::entry;
 use swingdrive_firmware::checks::{self, Tally};
-use swingdrive_firmware::ramp_checks;
 use swingdrive_firmware::{exit, say};
+use swingdrive_firmware::{player_checks, ramp_checks};
 
 #[entry]
 fn main() -> ! {
@@ -15,6 +15,7 @@ fn main() -> ! {
     checks::kernels(&mut tally);
     checks::steady_state(&mut tally);
     ramp_checks::ramp(&mut tally);
+    player_checks::player(&mut tally);
     say(format_args!(
         "{} of {} numeric results bit-identical to the host's f32",
         tally.bit_identical, tally.compared
