@@ -493,6 +493,9 @@ struct DesignArgs {
     /// Residual-swing target over the tolerance band, degrees.
     #[arg(long, default_value_t = 0.2)]
     target_deg: f64,
+    /// Also design (and check) every length with this light seat damping, 1/s.
+    #[arg(long)]
+    extra_damping: Option<f64>,
     /// Write the designed profile as CSV (time_s,speed_rad_s).
     #[arg(long)]
     csv: Option<PathBuf>,
@@ -538,6 +541,7 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
     let (from, to) = (speed(args.from_deg), speed(args.to_deg));
     let mut options = DesignOptions::default();
     options.residual_target_deg = args.target_deg;
+    options.extra_damping_per_s = args.extra_damping;
     let mut limits = ride.limits;
     let nominal_length = ride.seat.length_m();
     // The parameter set: its stamp, its length band and its certified limits.
@@ -591,6 +595,7 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
         "to_speed_rad_s": to,
         "length_band_m": [band.0, band.1],
         "residual_target_deg": args.target_deg,
+        "extra_damping_per_s": args.extra_damping,
         "time_optimal_duration_s": t_opt,
         "target_duration_bound_s": bound,
         "stamp": format!("{stamp:#010x}"),

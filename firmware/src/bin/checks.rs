@@ -6,8 +6,8 @@
 
 use cortex_m_rt::entry;
 use swingdrive_firmware::checks::{self, Tally};
-use swingdrive_firmware::ramp_checks;
 use swingdrive_firmware::{exit, say};
+use swingdrive_firmware::{player_checks, ramp_checks};
 
 #[entry]
 fn main() -> ! {
@@ -17,6 +17,7 @@ fn main() -> ! {
     ramp_checks::ramp(&mut tally);
     #[cfg(feature = "fixed")]
     ramp_checks::fixed_ramp(&mut tally);
+    player_checks::player(&mut tally);
     sizes();
     say(format_args!(
         "{} of {} numeric results bit-identical to the host's f32",
