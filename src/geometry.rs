@@ -103,6 +103,16 @@ impl RideGeometry {
     }
 }
 
+/// Checks the effective length: positive, and in [`RideGeometry::MIN_LENGTH_M`,
+/// `RideGeometry::MAX_LENGTH_M`].
+fn check_length(length_m: f32) -> Result<f32, ParamError> {
+    let l = check_positive("length_m", length_m, RideGeometry::MAX_LENGTH_M)?;
+    if l < RideGeometry::MIN_LENGTH_M {
+        return Err(ParamError::OutOfRange("length_m"));
+    }
+    Ok(l)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -145,12 +155,3 @@ mod tests {
     }
 }
 
-/// Checks the effective length: positive, and in [`RideGeometry::MIN_LENGTH_M`,
-/// `RideGeometry::MAX_LENGTH_M`].
-fn check_length(length_m: f32) -> Result<f32, ParamError> {
-    let l = check_positive("length_m", length_m, RideGeometry::MAX_LENGTH_M)?;
-    if l < RideGeometry::MIN_LENGTH_M {
-        return Err(ParamError::OutOfRange("length_m"));
-    }
-    Ok(l)
-}

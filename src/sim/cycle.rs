@@ -602,3 +602,82 @@ pub fn governor_for(ride: &RideFile) -> Option<GovernorParams> {
         ..GovernorParams::demo(&ride.geometry, c.certified_angle_deg, c.max_jerk_rad_s3)
     })
 }
+
+/// A requested-speed series run through the interlock (and the governor)
+/// against the drive model, and the seats on the shaft speed that resulted.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RequestRun {
+    /// The loop, tick by tick.
+    pub trace: Vec<LoopSample>,
+    /// The seat, every [`SEAT_SAMPLE_S`].
+    pub seat: Vec<Observation>,
+    /// Largest angle from vertical, °.
+    pub peak_angle_deg: f64,
+    /// The trip that ended the run early, if any.
+    pub trip: Option<TripCause>,
+}
+
+/// Runs `request` (rad/s as a function of time, s) for `duration_s` through
+/// the ride file's interlock — with the swing governor when `governor` is
+/// given — against its drive model, then simulates the seats.
+///
+/// # Errors
+/// [`CycleError::NoInterlock`], [`CycleError::NoDrive`],
+/// [`CycleError::Governor`], [`CycleError::Sim`].
+pub fn run_requests(
+    ride: &RideFile,
+    mut request: impl FnMut(f64) -> f64,
+    governor: Option<GovernorParams>,
+    duration_s: f64,
+) -> Result<RequestRun, CycleError> {
+    let params = ride.interlock.ok_or(CycleError::NoInterlock)?;
+    let drive = ride.drive.ok_or(CycleError::NoDrive)?;
+    let mut governor = match governor {
+        None => HostGovernor::None(PassThrough),
+        Some(g) => {
+            let mut swing = SwingGovernor::new(&ride.geometry, &g).map_err(CycleError::Governor)?;
+            swing.confirm_rest(0.0);
+            HostGovernor::Swing(Box::new(swing))
+        }
+    };
+    let mut interlock: Interlock<64> = Interlock::new(params);
+    let c = *params.config();
+    let setup = LoopSetup {
+        tick_s: f64::from(c.tick_s),
+        drive,
+        second_channel: c.second_channel,
+        fault: None,
+        reset_at_s: None,
+        max_time_s: duration_s,
+    };
+    let trace = run_loop(
+        &setup,
+        |sensors, t, dt| {
+            #[allow(clippy::cast_possible_truncation)]
+            let request_rad_s = request(t) as f32;
+            let inputs = crate::interlock::TickInputs {
+                request_rad_s,
+                ..*sensors
+            };
+            let output = interlock.tick_with(&inputs, dt, &mut governor);
+            ControllerTick {
+                request_rad_s,
+                output,
+                step: 0,
+                cycle: CycleState::Running,
+            }
+        },
+        |_| false,
+    );
+    let seat = seat_on_trace(&ride.seat, &trace, SEAT_SAMPLE_S).map_err(CycleError::Sim)?;
+    Ok(RequestRun {
+        peak_angle_deg: seat
+            .iter()
+            .map(|o| o.state.angle_from_vertical_rad())
+            .fold(0.0, f64::max)
+            .to_degrees(),
+        trip: interlock.cause(),
+        trace,
+        seat,
+    })
+}
