@@ -59,7 +59,7 @@ fn print_cycle(out: &CycleOutcome, program: &ProgramFile) {
         }
     }
     println!(
-        "  {} of {} steps done; peak angle {:.2}°, peak load factor {:.3}, governor held the request back {:.1} s",
+        "  {} of {} steps done; peak angle {:.2}°, peak load factor {:.3}, interlock limiting {:.1} s",
         out.steps.iter().filter(|s| s.report.is_some()).count(),
         program.steps.len(),
         out.peak_angle_deg,

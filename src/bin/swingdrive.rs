@@ -904,7 +904,7 @@ fn cycle_command(args: &CycleArgs) -> Result<Report, Failure> {
         text.push_str(&format!("  {:>8.2} s  {}\n", e.time_s, e.what));
     }
     text.push_str(&format!(
-        "\npeak angle {:.2} deg (certified {certified:.1}), peak load factor {:.3}, governor held the request back for {:.1} s\n",
+        "\npeak angle {:.2} deg (certified {certified:.1}), peak load factor {:.3}, the interlock limited the request for {:.1} s\n",
         out.peak_angle_deg, out.peak_load_factor, out.restricted_s
     ));
     if let Some(cause) = out.trip {

@@ -172,7 +172,8 @@ pub struct CycleOutcome {
     pub peak_angle_deg: f64,
     /// Largest load factor over the run.
     pub peak_load_factor: f64,
-    /// Time the governor held the request back, s.
+    /// Time the interlock was limiting the request (the governor or the
+    /// ceiling held it back), s.
     pub restricted_s: f64,
 }
 
