@@ -95,7 +95,7 @@ fn swing_governor() {
     governor.confirm_rest(0.0);
     let mut setpoint = ramp.setpoint();
     let request = black_box(1.1_f32);
-    let mut input = |setpoint: swingdrive::Setpoint| GovernorInput {
+    let input = |setpoint: swingdrive::Setpoint| GovernorInput {
         clamped_request_rad_s: request,
         commanded: setpoint,
         measured_rad_s: Some(setpoint.speed.rad_per_s()),
@@ -115,7 +115,7 @@ fn swing_governor() {
     // 4: swing governor tick: estimator step (3 lengths, chain) + decision
     measure(4, || governor.govern(black_box(&tick)));
     let v = setpoint.speed.rad_per_s();
-    // 5: swing governor, one certificate evaluation (3 lengths): a decision makes 2 to 4
+    // 5: swing governor, one certificate evaluation (3 lengths): a decision makes 1 to 3
     measure(5, || {
         governor.slack(
             black_box(v),

@@ -61,16 +61,18 @@ fn steady_state() -> f32 {
 /// Exercises the swing governor's construction and per-tick path (estimator
 /// step, sensor correction, decision).
 fn swing_governor() -> f32 {
-    use swingdrive::{
-        GovernorInput, GovernorParams, RequestGovernor, Setpoint, SwingGovernor,
-    };
+    use swingdrive::{GovernorInput, GovernorParams, RequestGovernor, Setpoint, SwingGovernor};
     let suspension = if black_box(true) {
         Suspension::Chain
     } else {
         Suspension::Rod
     };
-    let Ok(ride) = RideGeometry::new(black_box(4.0), black_box(6.5), suspension, Gravity::STANDARD)
-    else {
+    let Ok(ride) = RideGeometry::new(
+        black_box(4.0),
+        black_box(6.5),
+        suspension,
+        Gravity::STANDARD,
+    ) else {
         return 0.0;
     };
     let params = GovernorParams::demo(&ride, black_box(50.0), black_box(0.05));
