@@ -110,7 +110,7 @@ fn pumping(t: f32, ceiling: f32) -> f32 {
         return ceiling;
     }
     let n = ((t - 40.0) / half_period(ceiling)) as u32;
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         0.75 * ceiling
     } else {
         ceiling
