@@ -264,3 +264,33 @@ fn the_drive_table_smooths_a_step_and_a_permit_drop_coasts() {
     assert_eq!(dropped["final_speed_rad_s"], 0.0);
     assert_eq!(dropped["residual_window_start_s"], 60.0);
 }
+
+#[test]
+fn envelope_reports_the_bare_and_the_governed_peak() {
+    // A small search on the demo ride at a 45° certified angle: the bare worst case goes
+    // past the certified angle (a jerk-limited move straight to the ceiling alone swings
+    // past it on this ride), the governed one stays inside, and exit status 0 says so.
+    let out = run(&[
+        "envelope",
+        &example("demo_chain_ride.toml"),
+        "--certified-deg",
+        "45",
+        "--random",
+        "1",
+        "--restarts",
+        "0",
+        "--json",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v["peak_angle_deg"].as_f64().unwrap() > 45.0);
+    assert!(v["governed_peak_angle_deg"].as_f64().unwrap() < 45.0);
+    assert_eq!(v["governed_exceedances"].as_u64(), Some(0));
+    // Without an [interlock] table and without --certified-deg: a clear input error.
+    let out = run(&["envelope", &example("demo_chain_ride.toml")]);
+    assert_eq!(out.status.code(), Some(2));
+}

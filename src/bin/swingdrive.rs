@@ -38,6 +38,28 @@ enum Command {
     /// Replay a speed profile and report peak angle, residual swing, peak
     /// load factor and chain slack.
     Replay(ReplayArgs),
+    /// Adversarial search for the worst peak swing angle over admissible
+    /// request sequences, without and with the swing governor.
+    Envelope(EnvelopeArgs),
+}
+
+#[derive(Args)]
+struct EnvelopeArgs {
+    /// Ride description (TOML); the certified angle and limits come from its
+    /// [interlock] table when it has one.
+    ride: PathBuf,
+    /// Certified angle, degrees (needed without an [interlock] table).
+    #[arg(long)]
+    certified_deg: Option<f32>,
+    /// Random request sequences.
+    #[arg(long, default_value_t = 1000)]
+    random: usize,
+    /// Hill-climb restarts (each objective).
+    #[arg(long, default_value_t = 20)]
+    restarts: usize,
+    /// Seed of the search.
+    #[arg(long, default_value_t = 1)]
+    seed: u64,
 }
 
 #[derive(Args)]
@@ -99,6 +121,7 @@ fn main() -> ExitCode {
     let result = match &cli.command {
         Command::Table(args) => table(args),
         Command::Replay(args) => replay_command(args, cli.json),
+        Command::Envelope(args) => envelope_command(args),
     };
     let mut stdout = std::io::stdout().lock();
     match result {
@@ -444,4 +467,85 @@ fn replay_text(
         "result: FAIL (profile outside the ride's limits)\n"
     });
     t
+}
+
+/// The adversarial search on one ride (see docs/dynamic_protection.md).
+fn envelope_command(args: &EnvelopeArgs) -> Result<Report, Failure> {
+    use swingdrive::protection::closed_loop::Rig;
+    use swingdrive::protection::search::{search, SearchSize};
+    use swingdrive::{GovernorParams, RampLimits};
+    let ride = RideFile::from_path(&args.ride).map_err(|e| Failure::Input(e.to_string()))?;
+    let (certified, ceiling, limits) = match (&ride.interlock, args.certified_deg) {
+        (_, Some(deg)) => {
+            let ceiling = ride
+                .geometry
+                .speed_for_angle(Angle::from_deg(deg))
+                .map_err(|e| Failure::Input(format!("--certified-deg: {e}")))?
+                .rad_per_s();
+            #[allow(clippy::cast_possible_truncation)]
+            let limits = RampLimits::new(
+                ride.limits.max_accel_rad_s2 as f32,
+                ride.limits.max_decel_rad_s2 as f32,
+                ride.limits.max_jerk_rad_s3 as f32,
+            )
+            .map_err(|e| Failure::Input(e.to_string()))?;
+            (deg, ceiling, limits)
+        }
+        (Some(p), None) => (
+            p.config().certified_angle_deg,
+            p.ceiling().ceiling_rad_s(),
+            p.ramp_limits(),
+        ),
+        (None, None) => {
+            return Err(Failure::Input(
+                "the ride file has no [interlock] table: give --certified-deg".into(),
+            ))
+        }
+    };
+    let params = GovernorParams::demo(&ride.geometry, certified, limits.max_jerk_rad_s3());
+    let rig = Rig {
+        geometry: ride.geometry,
+        limits,
+        stop_limits: limits,
+        ceiling_rad_s: ceiling,
+        params,
+    };
+    let size = SearchSize {
+        random: args.random,
+        restarts: args.restarts,
+        steps: 10,
+        duration_s: 150,
+        seed: args.seed,
+    };
+    let r = search(&rig, &size);
+    let passed = r.governed_exceedances == 0 && r.governed_faults == 0;
+    let text = format!(
+        "certified angle {certified} deg, steady-state ceiling {ceiling:.4} rad/s\n\
+         runs: {} (each without and with the governor)\n\
+         worst peak without governor: {:.2} deg ({})\n\
+         worst peak with governor:    {:.2} deg ({}), sideways {:.2} deg\n\
+         governed runs above the certified angle: {}, with a governor fault: {}\n",
+        r.runs,
+        r.bare.peak_deg,
+        r.bare.case,
+        r.governed.peak_deg,
+        r.governed.case,
+        r.governed.sideways_deg,
+        r.governed_exceedances,
+        r.governed_faults
+    );
+    let json = json!({
+        "certified_angle_deg": certified,
+        "ceiling_rad_s": ceiling,
+        "runs": r.runs,
+        "peak_angle_deg": r.bare.peak_deg,
+        "peak_case": r.bare.case,
+        "governed_peak_angle_deg": r.governed.peak_deg,
+        "governed_peak_case": r.governed.case,
+        "governed_sideways_deg": r.governed.sideways_deg,
+        "governed_exceedances": r.governed_exceedances,
+        "governed_faults": r.governed_faults,
+        "note": "governor parameters: GovernorParams::demo (length band +-2 %, speed uncertainty 0.005 rad/s)",
+    });
+    Ok(Report { text, json, passed })
 }
