@@ -3,11 +3,15 @@
 
 pub mod commissioning;
 pub mod error;
+#[cfg(feature = "fixed")]
+pub mod fixed_point;
 pub mod geometry;
 pub mod gravity;
 pub mod interlock;
 pub mod math;
 pub mod modes;
+pub mod player;
+pub mod program;
 pub mod protection;
 pub mod ramp;
 pub mod request_governor;
@@ -15,6 +19,8 @@ pub mod seat_model;
 pub mod steady;
 pub mod units;
 
+#[cfg(feature = "std")]
+pub mod design;
 #[cfg(feature = "std")]
 pub mod program_file;
 #[cfg(feature = "std")]
@@ -32,6 +38,7 @@ pub use interlock::{
     Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
 };
 pub use modes::{SwingMode, SwingModes};
+pub use player::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 pub use protection::{
     Certificate, EstimatorFault, GovernorParams, SwingEnvelope, SwingEstimator, SwingGovernor,
 };

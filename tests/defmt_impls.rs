@@ -13,6 +13,7 @@ use swingdrive::{
     BlockError, Event, EventKind, EventLog, Interlock, InterlockState, SafetyConfig, SafetyParams,
     Sample, SpeedCeiling, TickInputs, TickOutput, TripCause,
 };
+use swingdrive::{PlayerOutput, ProfilePlayer, ProfileTable, TableError};
 
 fn loggable<T: defmt::Format>() {}
 
@@ -28,8 +29,28 @@ fn hal_types_implement_defmt_format() {
     loggable::<SpeedReference>();
 }
 
+#[cfg(feature = "fixed")]
+#[test]
+fn fixed_point_types_implement_defmt_format() {
+    use swingdrive::fixed_point::{
+        FixedCeiling, FixedRamp, FixedRampPlayer, FixedSetpoint, FixedSpeedLimit,
+    };
+    loggable::<FixedCeiling>();
+    loggable::<FixedRamp>();
+    loggable::<FixedRampPlayer>();
+    loggable::<FixedSetpoint>();
+    loggable::<FixedSpeedLimit>();
+}
+
 #[test]
 fn public_types_implement_defmt_format() {
+    loggable::<swingdrive::program::CycleRunner<'static>>();
+    loggable::<swingdrive::program::CycleState>();
+    loggable::<swingdrive::program::CycleStatus>();
+    loggable::<swingdrive::program::Program<'static, 4>>();
+    loggable::<swingdrive::program::ProgramError>();
+    loggable::<swingdrive::program::Step<'static>>();
+    loggable::<swingdrive::program::StepProblem>();
     loggable::<BlockError>();
     loggable::<CeilingSource>();
     loggable::<Event>();
@@ -68,6 +89,10 @@ fn public_types_implement_defmt_format() {
     loggable::<Suspension>();
     loggable::<SwingMode>();
     loggable::<SwingModes>();
+    loggable::<PlayerOutput>();
+    loggable::<ProfilePlayer<'static>>();
+    loggable::<ProfileTable<'static>>();
+    loggable::<TableError>();
     loggable::<swingdrive::protection::Certificate>();
     loggable::<swingdrive::protection::EstimatorFault>();
     loggable::<swingdrive::protection::GovernorParams>();

@@ -56,6 +56,25 @@ impl Tally {
         }
     }
 
+    /// Records a numeric check decided by the caller (several outputs or a
+    /// tolerance of its own); prints failures.
+    /// `bit_identical`: whether the f32 result equals the host's bit for bit,
+    /// `None` when there is no host f32 result to compare with.
+    pub fn numeric(&mut self, name: &str, index: usize, ok: bool, bit_identical: Option<bool>) {
+        if bit_identical.is_some() {
+            self.compared += 1;
+        }
+        if ok {
+            self.passed += 1;
+            if bit_identical == Some(true) {
+                self.bit_identical += 1;
+            }
+        } else {
+            self.failed += 1;
+            crate::say(format_args!("FAIL {name}[{index}]"));
+        }
+    }
+
     /// Counts a scenario check that has no numeric reference.
     pub fn check(&mut self, name: &str, ok: bool) {
         if ok {

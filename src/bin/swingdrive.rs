@@ -41,6 +41,9 @@ enum Command {
     /// Adversarial search for the worst peak swing angle over admissible
     /// request sequences, without and with the swing governor.
     Envelope(EnvelopeArgs),
+    /// Design a swing-free speed change between two steady angles and write
+    /// it as a firmware table, CSV and SVG.
+    Design(DesignArgs),
 }
 
 #[derive(Args)]
@@ -128,6 +131,7 @@ fn main() -> ExitCode {
         Command::Table(args) => table(args),
         Command::Replay(args) => replay_command(args, cli.json),
         Command::Envelope(args) => envelope_command(args),
+        Command::Design(args) => design_command(args),
     };
     let mut stdout = std::io::stdout().lock();
     match result {
@@ -645,6 +649,326 @@ fn envelope_command(args: &EnvelopeArgs) -> Result<Report, Failure> {
         "governed_exceedances": r.governed_exceedances,
         "governed_faults": r.governed_faults,
         "note": "governor parameters: GovernorParams::demo (length band +-2 %, speed uncertainty 0.005 rad/s)",
+    });
+    Ok(Report { text, json, passed })
+}
+
+#[derive(Args)]
+struct DesignArgs {
+    /// Ride description (TOML); limits from [limits] (and [interlock] if given).
+    ride: PathBuf,
+    /// Start angle, degrees (0: from rest, seats hanging).
+    #[arg(long, default_value_t = 0.0)]
+    from_deg: f64,
+    /// End angle, degrees (0: spin-down to rest).
+    #[arg(long)]
+    to_deg: f64,
+    /// Duration, s; without it the shortest that meets the residual target.
+    #[arg(long)]
+    duration: Option<f64>,
+    /// Residual-swing target over the tolerance band, degrees.
+    #[arg(long, default_value_t = 0.2)]
+    target_deg: f64,
+    /// Write the designed profile as CSV (time_s,speed_rad_s).
+    #[arg(long)]
+    csv: Option<PathBuf>,
+    /// Write the firmware table: Rust source if the name ends in `.rs`, else raw bytes.
+    #[arg(long)]
+    table: Option<PathBuf>,
+    /// Write an SVG comparing the designed and the time-optimal profiles.
+    #[arg(long)]
+    svg: Option<PathBuf>,
+}
+
+fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
+    use swingdrive::design::{
+        compare, design, plot, table as tables, target_duration_bound_s, time_optimal_duration_s,
+        DesignError, DesignOptions, DesignRequest, DurationChoice,
+    };
+
+    let ride = RideFile::from_path(&args.ride).map_err(|e| Failure::Input(e.to_string()))?;
+    for (name, v) in [("--from-deg", args.from_deg), ("--to-deg", args.to_deg)] {
+        if !(v.is_finite() && (0.0..=85.0).contains(&v)) {
+            return Err(Failure::Input(format!("{name} must be between 0 and 85")));
+        }
+    }
+    if (args.from_deg - args.to_deg).abs() < 1e-6 {
+        return Err(Failure::Input("--from-deg and --to-deg must differ".into()));
+    }
+    if let Some(d) = args.duration {
+        if !(d.is_finite() && d > 0.0 && d <= swingdrive::design::MAX_DURATION_S) {
+            return Err(Failure::Input("--duration must be in (0, 600] s".into()));
+        }
+    }
+    if !(args.target_deg.is_finite() && args.target_deg > 0.0 && args.target_deg <= 10.0) {
+        return Err(Failure::Input("--target-deg must be in (0, 10]".into()));
+    }
+    let reference = ride.seat.steady_reference();
+    let speed = |deg: f64| {
+        if deg == 0.0 {
+            0.0
+        } else {
+            reference.speed_for_angle(deg.to_radians())
+        }
+    };
+    let (from, to) = (speed(args.from_deg), speed(args.to_deg));
+    let mut options = DesignOptions::default();
+    options.residual_target_deg = args.target_deg;
+    let mut limits = ride.limits;
+    let nominal_length = ride.seat.length_m();
+    // The parameter set: its stamp, its length band and its certified limits.
+    let (stamp, stamp_source) = match &ride.interlock {
+        Some(params) => {
+            let c = params.config();
+            let ceiling = f64::from(params.ceiling().ceiling_rad_s());
+            if from.max(to) > ceiling {
+                return Err(Failure::Input(format!(
+                    "the end speed {:.4} rad/s is above the interlock's speed ceiling {ceiling:.4} rad/s",
+                    from.max(to)
+                )));
+            }
+            let half_width = f64::from(c.length_max_m) - nominal_length;
+            if half_width > 0.0 {
+                options.length_band_m =
+                    Some((nominal_length - half_width, nominal_length + half_width));
+            }
+            limits.max_accel_rad_s2 = limits
+                .max_accel_rad_s2
+                .min(f64::from(c.max_acceleration_rad_s2));
+            limits.max_decel_rad_s2 = limits
+                .max_decel_rad_s2
+                .min(f64::from(c.max_deceleration_rad_s2));
+            limits.max_jerk_rad_s3 = limits.max_jerk_rad_s3.min(f64::from(c.max_jerk_rad_s3));
+            (params.stamp(), "interlock")
+        }
+        None => (0, "none"),
+    };
+    let band = options.length_band_m.unwrap_or((
+        (1.0 - options.band_fraction) * nominal_length,
+        (1.0 + options.band_fraction) * nominal_length,
+    ));
+    let request = DesignRequest {
+        seat: ride.seat,
+        limits,
+        from_speed_rad_s: from,
+        to_speed_rad_s: to,
+        duration: args
+            .duration
+            .map_or(DurationChoice::Shortest, DurationChoice::Fixed),
+    };
+    let t_opt = time_optimal_duration_s(&limits, from, to);
+    let bound = target_duration_bound_s(&ride.seat, &limits, from, to);
+    let base = json!({
+        "ride_file": args.ride.display().to_string(),
+        "suspension": suspension_name(ride.geometry.suspension()),
+        "from_deg": args.from_deg,
+        "to_deg": args.to_deg,
+        "from_speed_rad_s": from,
+        "to_speed_rad_s": to,
+        "length_band_m": [band.0, band.1],
+        "residual_target_deg": args.target_deg,
+        "time_optimal_duration_s": t_opt,
+        "target_duration_bound_s": bound,
+        "stamp": format!("{stamp:#010x}"),
+        "stamp_source": stamp_source,
+    });
+    let d = match design(&request, &options) {
+        Ok(d) => d,
+        Err(e @ (DesignError::Param(_) | DesignError::Sim(_))) => {
+            return Err(Failure::Input(e.to_string()))
+        }
+        Err(e) => {
+            let mut json = base;
+            if let Value::Object(map) = &mut json {
+                map.insert("passed".into(), json!(false));
+                map.insert("error".into(), json!(e.to_string()));
+            }
+            return Ok(Report {
+                text: format!("design failed: {e}\nresult: FAIL\n"),
+                json,
+                passed: false,
+            });
+        }
+    };
+
+    let speeds: Vec<f64> = d.samples.iter().map(|s| s.1).collect();
+    let bytes = tables::encode(&speeds, d.table_period_s, stamp)
+        .map_err(|e| Failure::Input(e.to_string()))?;
+    if let Some(path) = &args.table {
+        let is_rust = path.extension().is_some_and(|e| e == "rs");
+        if is_rust {
+            let comments = vec![
+                format!(
+                    "Swing-free profile for {}: {}° -> {}° in {:.2} s, designed by `swingdrive design`.",
+                    file_name(&args.ride),
+                    args.from_deg,
+                    args.to_deg,
+                    d.duration_s
+                ),
+                format!(
+                    "Stamp {stamp:#010x} ({}); residual swing {:.3}° worst over lengths {:.3}..{:.3} m.",
+                    if stamp_source == "interlock" {
+                        "the [interlock] parameter set"
+                    } else {
+                        "no parameter set: a player expecting a real stamp refuses it"
+                    },
+                    d.residual_swing_deg,
+                    band.0,
+                    band.1
+                ),
+            ];
+            let source = tables::to_rust_source(&bytes, "SWING_FREE_TABLE", &comments);
+            write_file(path, source.as_bytes())?;
+        } else {
+            write_file(path, &bytes)?;
+        }
+    }
+    if let Some(path) = &args.csv {
+        let mut csv = String::from("time_s,speed_rad_s\n");
+        for (t, w) in &d.samples {
+            csv.push_str(&format!("{t:.6},{w}\n"));
+        }
+        write_file(path, csv.as_bytes())?;
+    }
+    if let Some(path) = &args.svg {
+        let ramp = compare::time_optimal_samples(&limits, from, to, d.table_period_s);
+        let span = d.duration_s.max(ramp.last().map_or(0.0, |s| s.0));
+        let trace_of =
+            |samples: &[(f64, f64)]| -> Result<Vec<swingdrive::sim::TraceSample>, Failure> {
+                let mut padded = samples.to_vec();
+                if let Some(&(t, w)) = samples.last() {
+                    if t < span {
+                        padded.push((span, w));
+                    }
+                }
+                let profile =
+                    compare::to_profile(&padded).map_err(|e| Failure::Input(e.to_string()))?;
+                let options = ReplayOptions {
+                    settle_s: 0.5 * span,
+                    start: if from == 0.0 {
+                        StartCondition::Hanging
+                    } else {
+                        StartCondition::Steady
+                    },
+                    output_step_s: 0.05,
+                    ..ReplayOptions::default()
+                };
+                replay(&ride.seat, &profile, &options, None)
+                    .map(|o| o.trace)
+                    .map_err(|e| Failure::Input(e.to_string()))
+            };
+        let designed = trace_of(&d.samples)?;
+        let optimal = trace_of(&ramp)?;
+        let title = format!(
+            "{}: {}° -> {}°, swing-free {:.2} s vs time-optimal {:.2} s",
+            file_name(&args.ride),
+            args.from_deg,
+            args.to_deg,
+            d.duration_s,
+            t_opt
+        );
+        let curves = [
+            plot::Curve {
+                label: "swing-free (designed)",
+                colour: plotters::style::RGBColor(0, 90, 200),
+                trace: &designed,
+            },
+            plot::Curve {
+                label: "time-optimal ramp",
+                colour: plotters::style::RGBColor(210, 40, 40),
+                trace: &optimal,
+            },
+        ];
+        let svg =
+            plot::render_comparison(&curves, &title).map_err(|e| Failure::Input(e.to_string()))?;
+        write_file(path, svg.as_bytes())?;
+    }
+
+    let passed = d.meets_target;
+    let mut json = base;
+    if let Value::Object(map) = &mut json {
+        map.insert("passed".into(), json!(passed));
+        map.insert("duration_s".into(), json!(d.duration_s));
+        map.insert("residual_swing_deg".into(), json!(d.residual_swing_deg));
+        map.insert("peak_angle_deg".into(), json!(d.peak_angle_deg));
+        map.insert("steady_angle_deg".into(), json!(d.steady_angle_deg));
+        map.insert("overshoot_deg".into(), json!(d.overshoot_deg));
+        map.insert("limits_ok".into(), json!(d.limits_ok));
+        map.insert(
+            "profile".into(),
+            serde_json::to_value(d.stats).unwrap_or(Value::Null),
+        );
+        map.insert(
+            "limits".into(),
+            serde_json::to_value(limits).unwrap_or(Value::Null),
+        );
+        map.insert(
+            "band".into(),
+            serde_json::to_value(&d.checks).unwrap_or(Value::Null),
+        );
+        map.insert("table_period_s".into(), json!(d.table_period_s));
+        map.insert("table_samples".into(), json!(d.samples.len()));
+        map.insert("table_bytes".into(), json!(bytes.len()));
+        map.insert("optimiser_iterations".into(), json!(d.optimiser.iterations));
+        map.insert("durations_tried".into(), json!(d.optimiser.durations_tried));
+        for (key, path) in [
+            ("csv_file", &args.csv),
+            ("table_file", &args.table),
+            ("svg_file", &args.svg),
+        ] {
+            map.insert(
+                key.into(),
+                json!(path.as_ref().map(|p| p.display().to_string())),
+            );
+        }
+    }
+    let mut text = format!(
+        "ride     {}: {}, {}° -> {}° ({:.4} -> {:.4} rad/s)\n",
+        args.ride.display(),
+        suspension_name(ride.geometry.suspension()),
+        args.from_deg,
+        args.to_deg,
+        from,
+        to
+    );
+    text.push_str(&format!(
+        "duration                  {:7.2} s (time-optimal ramp {:.2} s; target bound {:.2} s)\n",
+        d.duration_s, t_opt, bound
+    ));
+    text.push_str(&format!(
+        "residual swing            {:7.3}° worst over lengths {:.3}..{:.3} m (target {}°)\n",
+        d.residual_swing_deg, band.0, band.1, args.target_deg
+    ));
+    text.push_str(&format!(
+        "peak angle from vertical  {:7.2}° worst over the band (nominal steady {:.2}°; overshoot past each length's own steady angle {:.2}°)\n",
+        d.peak_angle_deg, d.steady_angle_deg, d.overshoot_deg
+    ));
+    text.push_str(&format!(
+        "profile vs limits         {}: accel {:.4}, decel {:.4}, jerk {:.4}\n",
+        if d.limits_ok { "ok" } else { "EXCEEDED" },
+        d.stats.peak_accel_rad_s2,
+        d.stats.peak_decel_rad_s2,
+        d.stats.peak_jerk_rad_s3
+    ));
+    text.push_str(&format!(
+        "table                     {} samples every {} s, {} bytes, stamp {stamp:#010x} ({stamp_source})\n",
+        d.samples.len(),
+        d.table_period_s,
+        bytes.len()
+    ));
+    for (what, path) in [
+        ("csv", &args.csv),
+        ("table", &args.table),
+        ("svg", &args.svg),
+    ] {
+        if let Some(p) = path {
+            text.push_str(&format!("wrote {what:<19} {}\n", p.display()));
+        }
+    }
+    text.push_str(if passed {
+        "result: pass\n"
+    } else {
+        "result: FAIL (residual target not met)\n"
     });
     Ok(Report { text, json, passed })
 }

@@ -107,6 +107,9 @@ impl SwingGovernor {
     ///
     /// # Errors
     /// [`ParamError`] naming the refused parameter.
+    // Not inlined: the governor is large, and an inlined constructor keeps
+    // several copies of it in the caller's frame (too much for a 16 KiB M0).
+    #[inline(never)]
     pub fn new(geometry: &RideGeometry, params: &GovernorParams) -> Result<Self, ParamError> {
         let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
         let l = geometry.length_m();
@@ -293,7 +296,8 @@ impl SwingGovernor {
         // the decision period per decision, toward the request.
         let held = self.admitted;
         let reach = self.params.target_rate_rad_s2 * self.params.estimator_period_s;
-        let trial = held + (request - held).clamp(-reach, reach);
+        // max/min rather than clamp: no assertion on the bounds, so no panic path.
+        let trial = held + (request - held).max(-reach).min(reach);
         let s_trial = self.slack(measured, v, a, trial);
         // A move away from standstill must leave enough slack for the first
         // step back down to be certified too (the bound charges a step down

@@ -15,19 +15,46 @@ pub const QUANTA_PER_SECOND: f32 = 68_719_476_736.0;
 pub const SECONDS_PER_QUANTUM: f32 = 1.0 / QUANTA_PER_SECOND;
 
 /// Seconds to quanta, rounded to nearest (ties up). Negative or NaN give 0;
-/// values past the `u64` range saturate (Rust's float-to-int cast is
-/// saturating, never UB).
-///
-/// Adding one half and truncating rounds correctly: below 2²⁴ the sum is
-/// exact, and from 2²⁴ on every `f32` is a whole number, so the sum rounds back
-/// to it.
+/// values from 2⁶³ quanta (2²⁷ s) on saturate there.
 #[must_use]
 #[inline]
 pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
-    // Through i64: one conversion instruction on common targets; the values
-    // used stay far below 2⁶³ (2²⁷ s), and negatives are cut to 0.
-    let q = (seconds * QUANTA_PER_SECOND + 0.5) as i64;
-    q.max(0) as u64
+    // From the bits, in integer arithmetic: the float-to-64-bit conversion is a
+    // library routine on 32-bit Arm, this is a shift. `seconds = m·2^(e−150)`
+    // with the 24-bit significand `m`, so `seconds·2³⁶ = m·2^(e−114)`.
+    let bits = seconds.to_bits();
+    if bits >= 0x8000_0000 || bits == 0 {
+        // Negative (also −0.0 and negative NaN) or +0.0.
+        return 0;
+    }
+    let exp = (bits >> 23) as i32;
+    if exp == 0xff {
+        // +∞ saturates; NaN gives 0, like `as` casts.
+        return if bits & 0x007f_ffff == 0 {
+            i64::MAX as u64
+        } else {
+            0
+        };
+    }
+    let m = if exp == 0 {
+        u64::from(bits & 0x007f_ffff) // subnormal: far below half a quantum
+    } else {
+        u64::from(bits & 0x007f_ffff | 0x0080_0000)
+    };
+    let shift = exp.max(1) - 114;
+    if shift >= 0 {
+        // At most 2^63: saturate like the float cast through i64 did.
+        if shift > 39 {
+            return i64::MAX as u64;
+        }
+        m << shift
+    } else if shift > -26 {
+        // Round half up: add half of the last kept place, then shift.
+        let s = shift.unsigned_abs();
+        (m + (1 << (s - 1))) >> s
+    } else {
+        0
+    }
 }
 
 /// Quanta to seconds (rounded to `f32`, relative error ≤ 2⁻²⁴; used only for
@@ -35,9 +62,61 @@ pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
 #[must_use]
 #[inline]
 pub(crate) fn s_from_quanta(quanta: u64) -> f32 {
-    // Through i64 for the same reason; larger values saturate at 2⁶³ quanta.
-    let q = i64::try_from(quanta).unwrap_or(i64::MAX);
-    q as f32 * SECONDS_PER_QUANTUM
+    // Correctly rounded without the 64-bit conversion routine: below 2³² one
+    // hardware conversion; above, shift into 32 bits and keep the dropped bits as
+    // a sticky bit far below the rounding position (bit 7 of 32 significant
+    // bits), so that the 32-bit conversion still rounds correctly. Values from
+    // 2⁶³ on saturate there, as before.
+    let quanta = quanta.min(i64::MAX as u64);
+    let high = (quanta >> 32) as u32;
+    if high == 0 {
+        return quanta as u32 as f32 * SECONDS_PER_QUANTUM;
+    }
+    let k = 32 - high.leading_zeros();
+    let kept = (quanta >> k) as u32;
+    let sticky = u32::from(quanta & ((1_u64 << k) - 1) != 0);
+    // 2^(k−36) is a normal f32 for k in 1..=32: the multiplication is exact.
+    let scale = f32::from_bits((127 + k - 36) << 23);
+    (kept | sticky) as f32 * scale
+}
+
+/// The last tick period and its conversion to quanta: a controller ticks at a
+/// fixed period, so the conversion is done once, not every tick. A cache, not
+/// state: two caches always compare equal.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct TickCache {
+    bits: u32,
+    quanta: u64,
+}
+
+impl TickCache {
+    /// An empty cache (+0.0 s is never a valid tick, so it never hits).
+    pub(crate) const EMPTY: Self = Self { bits: 0, quanta: 0 };
+
+    /// `quanta_from_s(seconds)`, from the cache when `seconds` is the same as last
+    /// time (same bits).
+    #[inline]
+    pub(crate) fn quanta(&mut self, seconds: f32) -> u64 {
+        let bits = seconds.to_bits();
+        if bits != self.bits {
+            self.bits = bits;
+            self.quanta = quanta_from_s(seconds);
+        }
+        self.quanta
+    }
+}
+
+impl PartialEq for TickCache {
+    fn eq(&self, _: &Self) -> bool {
+        true
+    }
+}
+
+#[cfg(feature = "defmt")]
+impl defmt::Format for TickCache {
+    fn format(&self, f: defmt::Formatter<'_>) {
+        defmt::write!(f, "TickCache");
+    }
 }
 
 #[cfg(test)]
@@ -56,5 +135,75 @@ mod tests {
         assert_eq!(quanta_from_s(-1.0), 0);
         assert_eq!(quanta_from_s(f32::NAN), 0);
         assert!((s_from_quanta(q) - 0.001).abs() < 1e-10);
+    }
+
+    /// Round half up of `seconds·2³⁶`, in f64 (exact for every f32 input below
+    /// 2²⁷ s), saturating at 2⁶³ like the float cast through i64.
+    fn quanta_by_float(seconds: f32) -> u64 {
+        let q = (f64::from(seconds) * 68_719_476_736.0 + 0.5).floor() as i64;
+        q.max(0) as u64
+    }
+
+    fn seconds_by_float(quanta: u64) -> f32 {
+        let q = i64::try_from(quanta).unwrap_or(i64::MAX);
+        q as f32 * SECONDS_PER_QUANTUM
+    }
+
+    #[test]
+    fn integer_conversions_equal_the_float_formulas() {
+        // Every 997th f32 bit pattern (both signs, NaN, infinities, subnormals).
+        let mut bits: u32 = 0;
+        loop {
+            let x = f32::from_bits(bits);
+            assert_eq!(quanta_from_s(x), quanta_by_float(x), "{x:e} ({bits:#x})");
+            match bits.checked_add(997) {
+                Some(b) => bits = b,
+                None => break,
+            }
+        }
+        for x in [
+            0.0,
+            -0.0,
+            f32::MIN_POSITIVE,
+            1e-3,
+            0.5,
+            1.0,
+            1e8,
+            f32::MAX,
+            f32::INFINITY,
+        ] {
+            assert_eq!(quanta_from_s(x), quanta_by_float(x), "{x:e}");
+        }
+        // Quanta: every power of two and its neighbours, plus a scattered sweep.
+        for k in 0..64 {
+            let p = 1_u64 << k;
+            for q in [p - 1, p, p + 1, p + p / 3, p | 0x55] {
+                assert_eq!(
+                    s_from_quanta(q).to_bits(),
+                    seconds_by_float(q).to_bits(),
+                    "{q}"
+                );
+            }
+        }
+        let mut q: u64 = 1;
+        for _ in 0..200_000 {
+            assert_eq!(
+                s_from_quanta(q).to_bits(),
+                seconds_by_float(q).to_bits(),
+                "{q}"
+            );
+            q = q
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+        }
+        assert_eq!(s_from_quanta(u64::MAX), seconds_by_float(u64::MAX));
+    }
+
+    #[test]
+    fn tick_cache_converts_like_the_function() {
+        let mut cache = TickCache::EMPTY;
+        for dt in [1e-3_f32, 1e-3, 2.5e-4, 1e-3, 0.0, 0.0, 1.0] {
+            assert_eq!(cache.quanta(dt), quanta_from_s(dt));
+        }
     }
 }

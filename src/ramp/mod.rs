@@ -45,8 +45,10 @@ pub use setpoint::{RampPhase, Setpoint};
 
 use crate::error::ParamError;
 use crate::units::AngularSpeed;
-use clock::{quanta_from_s, s_from_quanta};
-use plan::{admit_target, build, check_speed, Anchor};
+pub(crate) use clock::quanta_from_s;
+use clock::{s_from_quanta, TickCache};
+pub(crate) use plan::{admit_target, check_speed};
+use plan::{build, Anchor};
 
 /// Longest accepted tick, s. A setpoint generator that has not run for longer
 /// has a fault of its own; the caller must stop the ride, not catch up.
@@ -95,6 +97,8 @@ pub struct SpeedRamp {
     /// Time quanta since the start of the current segment, always below its
     /// duration (0 when the plan is complete).
     into: u64,
+    /// The last tick period in quanta.
+    tick: TickCache,
 }
 
 impl SpeedRamp {
@@ -107,6 +111,7 @@ impl SpeedRamp {
             plan: Plan::at_rest(0.0),
             segment: 0,
             into: 0,
+            tick: TickCache::EMPTY,
         }
     }
 
@@ -149,7 +154,7 @@ impl SpeedRamp {
         if !(dt_s > 0.0 && dt_s <= MAX_TICK_S) {
             return Err(refused_tick(dt_s));
         }
-        let quanta = quanta_from_s(dt_s);
+        let quanta = self.tick.quanta(dt_s);
         let (segment, into) = self
             .plan
             .advance(self.segment, self.into.saturating_add(quanta));
@@ -276,6 +281,9 @@ impl SpeedRamp {
             MIN_SAMPLE_PERIOD_S,
             MAX_LOOK_AHEAD_S,
         )?;
+        // At least one quantum (1 µs is 68,719 of them); the floor keeps the
+        // division visibly total for the no-panic link check.
+        let period = period.max(1);
         let remaining = self.plan.remaining_quanta(self.segment, self.into);
         let whole = remaining / period;
         let total = whole
@@ -296,7 +304,7 @@ impl SpeedRamp {
         Ok(Samples {
             points,
             period_s,
-            not_stored: total - k,
+            not_stored: total.saturating_sub(k),
         })
     }
 

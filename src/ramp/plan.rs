@@ -233,10 +233,42 @@ fn clamp_anchor(x: f32, lo: f32, p: f32, q: f32) -> (f32, f32) {
     }
 }
 
-/// `x` limited to the closed interval spanned by `p` and `q` (in either order).
+/// `x` limited to the closed interval spanned by `p` and `q` (in either order);
+/// NaN gives the lower end, as `x.max(lo).min(hi)` would. Plain comparisons:
+/// `f32::max`/`min` are library calls (`fmaxf`/`fminf`) on Arm's FPU, which has
+/// no IEEE maxNum instruction before Armv8.
 #[inline]
 fn between(x: f32, p: f32, q: f32) -> f32 {
-    x.max(p.min(q)).min(p.max(q))
+    let (lo, hi) = if p <= q { (p, q) } else { (q, p) };
+    if x >= lo {
+        if x <= hi {
+            x
+        } else {
+            hi
+        }
+    } else {
+        lo
+    }
+}
+
+/// `x.max(c)` for a finite `c` (NaN gives `c`), in plain comparisons.
+#[inline]
+fn at_least(x: f32, c: f32) -> f32 {
+    if x > c {
+        x
+    } else {
+        c
+    }
+}
+
+/// `x.min(c)` for a finite `c` (NaN gives `c`), in plain comparisons.
+#[inline]
+fn at_most(x: f32, c: f32) -> f32 {
+    if x < c {
+        x
+    } else {
+        c
+    }
 }
 
 /// A complete plan from a start state to a target, in closed form.
@@ -445,6 +477,14 @@ impl Plan {
     /// `quanta`; returns the new position. Past the end: `(len, 0)`.
     #[inline]
     pub(crate) fn advance(&self, mut index: usize, quanta: u64) -> (usize, u64) {
+        // The common tick stays inside the current segment.
+        if index < usize::from(self.len) {
+            if let Some(seg) = self.segments.get(index) {
+                if quanta < seg.duration_quanta {
+                    return (index, quanta);
+                }
+            }
+        }
         let mut into = quanta;
         // At most MAX_SEGMENTS iterations.
         while let Some(seg) = self.segments().get(index) {
@@ -611,16 +651,16 @@ struct ThreePhase {
 /// Rising move of `w` from (`w0`, `al0`) to `wt` with acceleration in
 /// `[0, lim]`, `0 <= al0 <= lim`, and no overshoot (`w0 + al0²/2j <= wt`).
 fn three_phase(w0: f32, al0: f32, wt: f32, lim: Lim, k: Kin) -> ThreePhase {
-    let al0 = al0.max(0.0).min(lim.max);
-    let dw = (wt - w0).max(0.0);
+    let al0 = at_most(at_least(al0, 0.0), lim.max);
+    let dw = at_least(wt - w0, 0.0);
     // Peak when the limit is not reached: the speed change splits into the
     // rise from al0 to h, (h² - al0²)/2j, and the fall from h to 0, h²/2j.
     let h = crate::math::sqrt(0.5 * al0 * al0 + k.j * dw);
     let (t1, t2, peak) = if h <= lim.max {
-        (((h - al0) * k.ij).max(0.0), 0.0, h)
+        (at_least((h - al0) * k.ij, 0.0), 0.0, h)
     } else {
         let hold = dw * lim.inv - lim.max * k.ij + al0 * al0 * k.hij * lim.inv;
-        ((lim.max - al0) * k.ij, hold.max(0.0), lim.max)
+        ((lim.max - al0) * k.ij, at_least(hold, 0.0), lim.max)
     };
     let w2 = between(wt - peak * peak * k.hij, w0, wt);
     let w1 = if t2 > 0.0 {
@@ -677,7 +717,7 @@ pub(crate) fn build(
                 // exactly at zero speed with the smallest sufficient jerk.
                 if v0 > 0.0 {
                     let needed = a0 * a0 / (2.0 * v0);
-                    let jj = needed.max(j);
+                    let jj = at_least(needed, j);
                     jerk_raised = needed > j * (1.0 + JERK_ROUNDING);
                     b.push(jj, -a0 / jj, 0.0, 0.0);
                 } else {
@@ -703,7 +743,7 @@ pub(crate) fn build(
         let jerk = -a.signum() * j;
         let mut end_v = v + a.signum() * (a * a - end_a * end_a) * k.hij;
         if reverse == Reverse::Forbidden {
-            end_v = end_v.max(0.0);
+            end_v = at_least(end_v, 0.0);
         }
         b.push(jerk, (a.abs() - bound) * k.ij, end_v, end_a);
     }
@@ -714,7 +754,7 @@ pub(crate) fn build(
     let (v, a) = (b.v, b.a);
     if v != vt {
         let s = if vt > v { 1.0 } else { -1.0 };
-        let (w0, al0, wt) = (s * v, (s * a).max(0.0), s * vt);
+        let (w0, al0, wt) = (s * v, at_least(s * a, 0.0), s * vt);
         let up = Lim {
             max: limits.max_acceleration_rad_s2(),
             inv: inv_up,
@@ -767,7 +807,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
         }
         // (c) Rise to `pre`, hold it until zero speed, then continue from
         // (0, pre) under `post`.
-        let w_r = (w0 + (pre.max * pre.max - al0 * al0) * k.hij).min(0.0);
+        let w_r = at_most(w0 + (pre.max * pre.max - al0 * al0) * k.hij, 0.0);
         b.push_w(s, k.j, (pre.max - al0) * k.ij, w_r, pre.max);
         b.push_w(s, 0.0, -w_r * pre.inv, 0.0, pre.max);
         let rest = three_phase(0.0, pre.max, wt, post, k);
@@ -803,7 +843,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
             ((h - al0) * k.ij, 0.0, h)
         } else {
             let hold = (al0 * al0 + q * q) * k.hij * pre.inv - pre.max * k.ij + dw * pre.inv;
-            ((pre.max - al0) * k.ij, hold.max(0.0), pre.max)
+            ((pre.max - al0) * k.ij, at_least(hold, 0.0), pre.max)
         };
         let w2 = between(-(peak * peak - q * q) * k.hij, w0, 0.0);
         let w1 = if t2 > 0.0 {
@@ -814,7 +854,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
         b.push_w(s, k.j, t1, w1, peak);
         b.push_w(s, 0.0, t2, w2, peak);
         b.push_w(s, -k.j, (peak - q) * k.ij, 0.0, q);
-        let w3 = (wt - q * q * k.hij).max(0.0);
+        let w3 = at_least(wt - q * q * k.hij, 0.0);
         b.push_w(s, 0.0, w3 * post.inv, w3, q);
         b.push_w(s, -k.j, q * k.ij, wt, 0.0);
     }
@@ -826,7 +866,7 @@ fn fallback(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, m: Lim, k: 
     let mut w = w0;
     let mut al = al0;
     if al0 > m.max {
-        w = (w0 + (al0 * al0 - m.max * m.max) * k.hij).min(wt);
+        w = at_most(w0 + (al0 * al0 - m.max * m.max) * k.hij, wt);
         b.push_w(s, -k.j, (al0 - m.max) * k.ij, w, m.max);
         al = m.max;
     }

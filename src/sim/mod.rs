@@ -10,6 +10,9 @@
 //!   breakpoints, sampling the motion on a fixed grid for an [`Observer`].
 //! * [`mod@replay`]: the test-bench questions answered — peak angle, residual
 //!   swing, peak load factor, chain slack — plus a time series.
+//! * [`closed_loop`]: the controller in the loop — interlock, governor and ride
+//!   program commanding the drive model through simulated sensors.
+//! * [`cycle`]: a ride-cycle program file run on the simulated ride.
 //! * [`output`]: the time series as CSV and as an SVG plot.
 //!
 //! The equations, the impulse rule, slack detection and the accuracy achieved
@@ -18,6 +21,8 @@
 //! This is an engineering estimate for test benches, not a certified safety
 //! function: it models one rigid seat on a massless link and nothing else.
 
+pub mod closed_loop;
+pub mod cycle;
 pub mod drive;
 pub mod dynamics;
 pub mod engine;

@@ -8,7 +8,10 @@
 
 use core::hint::black_box;
 use cortex_m_rt::entry;
-use swingdrive::{Angle, AngularSpeed, Gravity, RideGeometry, Suspension};
+use swingdrive::{
+    Angle, AngularSpeed, Gravity, Plan, RampLimits, ReseedReason, Reverse, RideGeometry, SpeedRamp,
+    Suspension,
+};
 use swingdrive_firmware::exit;
 
 /// Marks the start of measurement `id` (read from r0 in the trace).
@@ -64,8 +67,104 @@ fn main() -> ! {
             near_axis.angle_for_speed(AngularSpeed::from_rad_per_s(black_box(w)))
         });
     }
+    ramp_counts();
     swing_governor();
+    #[cfg(feature = "fixed")]
+    fixed_counts();
     exit(0)
+}
+
+/// A ramp (demo limits 0.5 rad/s² up, 1 rad/s² down, 1 rad/s³) stepped at
+/// 1 ms toward `target` for `ticks` ticks.
+fn ramp_at(target: f32, ticks: u32) -> SpeedRamp {
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(1.0), black_box(1.0)) else {
+        exit(2)
+    };
+    let mut ramp = SpeedRamp::new(limits, Reverse::Allowed);
+    let _ = ramp.set_target(AngularSpeed::from_rad_per_s(target));
+    for _ in 0..ticks {
+        let _ = ramp.step(1.0e-3);
+    }
+    ramp
+}
+
+/// Ramp step (target unchanged) and re-planning ticks, typical and worst.
+fn ramp_counts() {
+    let dt = black_box(1.0e-3_f32);
+    // 0 → 8 rad/s: segments of 0.5 s (jerk), 15.5 s (hold), 0.5 s (jerk).
+    let mut ramp = ramp_at(8.0, 200);
+    // 10: ramp step, 1 ms, first half of a segment (typical)
+    measure(10, || ramp.step(dt));
+    let mut ramp = ramp_at(8.0, 400);
+    // 11: ramp step, 1 ms, second half of a segment (evaluated from its end)
+    measure(11, || ramp.step(dt));
+    let mut ramp = ramp_at(8.0, 499);
+    // 12: ramp step, 1 ms, crossing into the next segment
+    measure(12, || ramp.step(dt));
+    let mut ramp = ramp_at(0.25, 0);
+    // 13: ramp step, 1 s tick across a whole two-segment plan to the target
+    measure(13, || ramp.step(black_box(1.0)));
+    // 14: ramp step at the target (plan complete)
+    measure(14, || ramp.step(dt));
+    let mut ramp = ramp_at(8.0, 300);
+    // 15: re-plan tick: set_target (new target, 4 rad/s) + step
+    measure(15, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(4.0)));
+        ramp.step(dt)
+    });
+    let mut ramp = ramp_at(8.0, 300);
+    // 16: re-plan tick through zero speed (accelerating up, target -8 rad/s: brake, cross, 4 segments) + step
+    measure(16, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-8.0)));
+        ramp.step(dt)
+    });
+    // 17: set_target with the same target (no re-plan) + step
+    measure(17, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-8.0)));
+        ramp.step(dt)
+    });
+    let mut ramp = ramp_at(8.0, 300);
+    // 18: reseed from a measured speed (drive fell behind) + step
+    measure(18, || {
+        let _ = ramp.reseed(
+            AngularSpeed::from_rad_per_s(black_box(0.01)),
+            ReseedReason::DriveFellBehind,
+        );
+        ramp.step(dt)
+    });
+    // Plan::replan from the states of the segment-capacity test (every
+    // crossing profile after a ramp-to-zero prefix): the deepest planning paths.
+    let states: [(f32, f32, f32, f32, f32); 6] = [
+        (1.0, 0.5, 0.3, 0.4, -8.0),
+        (0.5, 1.0, 0.3, 0.4, -8.0),
+        (1.0, 0.5, 5.0, -0.6, -8.0),
+        (0.5, 1.0, 5.0, -0.9, -8.0),
+        (0.5, 1.0, 0.05, -0.9, -8.0),
+        (0.5, 1.0, 5.0, -3.0, -8.0),
+    ];
+    let mut plan = Plan::new(
+        &RampLimits::new(1.0, 1.0, 1.0).unwrap_or_else(|_| exit(2)),
+        Reverse::Allowed,
+        AngularSpeed::ZERO,
+        0.0,
+        AngularSpeed::ZERO,
+    )
+    .unwrap_or_else(|_| exit(2));
+    for (up, down, v0, a0, vt) in states {
+        let Ok(limits) = RampLimits::new(black_box(up), black_box(down), black_box(1.0)) else {
+            exit(2)
+        };
+        // 19: Plan::replan, deepest paths (six states, one count each)
+        measure(19, || {
+            plan.replan(
+                &limits,
+                Reverse::Allowed,
+                AngularSpeed::from_rad_per_s(black_box(v0)),
+                black_box(a0),
+                AngularSpeed::from_rad_per_s(black_box(vt)),
+            )
+        });
+    }
 }
 
 /// Swing governor (src/protection): one 100 Hz tick in which the estimator
@@ -129,4 +228,63 @@ fn swing_governor() {
 #[panic_handler]
 fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
     exit(101)
+}
+
+/// The fixed-point tick: ramp step, ceiling clamp of the request and the
+/// interlock's comparisons (overspeed, following error), typical and worst.
+#[cfg(feature = "fixed")]
+fn fixed_counts() {
+    use swingdrive::fixed_point::{
+        following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
+    };
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(1.0), black_box(1.0)) else {
+        exit(2)
+    };
+    let (Ok(ceiling), Ok(over), Ok(follow)) = (
+        FixedCeiling::new(black_box(9.0), Reverse::Allowed),
+        FixedSpeedLimit::new("overspeed_rad_s", black_box(9.5)),
+        FixedSpeedLimit::new("following_tolerance_rad_s", black_box(0.3)),
+    ) else {
+        exit(2)
+    };
+    let ramp_at = |target: f32, ticks: u32| {
+        let Ok(mut ramp) = FixedRamp::new(limits, Reverse::Allowed, 1.0e-3) else {
+            exit(2)
+        };
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(target));
+        for _ in 0..ticks {
+            let _ = ramp.step();
+        }
+        ramp
+    };
+    // One fixed-point tick with the target unchanged: clamp the request,
+    // step, compare the measured speed with the ceiling and the command.
+    let tick = |ramp: &mut FixedRamp| {
+        let (request, limited) = ceiling.clamp(Speed::from_bits(black_box(8 << 16)));
+        let s = ramp.step();
+        let measured = Speed::from_bits(black_box(s.speed.to_bits() + 7));
+        let trip = over.exceeded_by(measured) || following_error_exceeds(measured, s.speed, follow);
+        (request, limited, s, trip)
+    };
+    let mut ramp = ramp_at(8.0, 200);
+    // 30: fixed-point tick (clamp + step + comparisons), first half of a segment
+    measure(30, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 400);
+    // 31: fixed-point tick, second half of a segment (evaluated from its end)
+    measure(31, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 8000);
+    // 32: fixed-point tick, 7.5 s into a 15.5 s hold (longest time since an anchor)
+    measure(32, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 499);
+    // 33: fixed-point tick crossing into the next segment
+    measure(33, || tick(&mut ramp));
+    let mut ramp = ramp_at(0.0, 0);
+    // 34: fixed-point tick at the target (plan complete)
+    measure(34, || tick(&mut ramp));
+    let mut ramp = ramp_at(8.0, 300);
+    // 35: fixed-point re-plan tick (new target through zero: f32 planning, soft-float on the M0) + tick
+    measure(35, || {
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-8.0)));
+        tick(&mut ramp)
+    });
 }

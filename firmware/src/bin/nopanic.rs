@@ -12,12 +12,14 @@
 use core::hint::black_box;
 use cortex_m_rt::entry;
 use swingdrive::{
-    commissioning, Angle, AngularSpeed, DriveScale, GearRatio, Gravity, RideGeometry, Suspension,
+    commissioning, Angle, AngularSpeed, DriveScale, GearRatio, Gravity, Plan, RampLimits,
+    ReseedReason, Reverse, RideGeometry, SpeedRamp, Suspension,
 };
 use swingdrive_firmware::{exit, say};
 
 /// Exercises the steady-state physics: every public function of the
 /// geometry, units and commissioning modules that firmware would call.
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn steady_state() -> f32 {
     let mut acc = 0.0;
     let suspension = if black_box(true) {
@@ -58,8 +60,70 @@ fn steady_state() -> f32 {
     acc
 }
 
+/// Exercises the speed ramp: every per-tick and planning entry point
+/// (limits, targets, steps, re-seed, queries, sampling, plans).
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
+fn ramp() -> f32 {
+    let mut acc = 0.0;
+    let reverse = if black_box(true) {
+        Reverse::Allowed
+    } else {
+        Reverse::Forbidden
+    };
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(0.8), black_box(1.0)) else {
+        return acc;
+    };
+    let mut ramp = SpeedRamp::new(limits, reverse);
+    let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(3.0)));
+    for _ in 0..black_box(100) {
+        acc += ramp
+            .step(black_box(1.0e-3))
+            .map_or(0.0, |s| s.speed.rad_per_s());
+        let _ = ramp.set_target(AngularSpeed::from_rad_per_s(black_box(-2.0)));
+    }
+    acc += ramp
+        .reseed(
+            AngularSpeed::from_rad_per_s(black_box(0.1)),
+            ReseedReason::CoastingTakeover,
+        )
+        .map_or(0.0, |s| s.acceleration_rad_s2);
+    if let Ok(steeper) = RampLimits::new(black_box(1.0), black_box(2.0), black_box(4.0)) {
+        ramp.set_limits(steeper);
+    }
+    acc += ramp.remaining_s();
+    acc += ramp
+        .predict(black_box(0.5))
+        .map_or(0.0, |s| s.speed.rad_per_s());
+    acc += ramp
+        .sample::<8>(black_box(0.25))
+        .map_or(0.0, |s| s.points.len() as f32);
+    acc += ramp.setpoint().jerk_rad_s3;
+    if let Ok(mut plan) = Plan::new(
+        &limits,
+        reverse,
+        AngularSpeed::from_rad_per_s(black_box(1.0)),
+        black_box(0.2),
+        AngularSpeed::from_rad_per_s(black_box(-1.0)),
+    ) {
+        acc += plan.duration_s();
+        acc += plan
+            .state_at(black_box(0.3))
+            .map_or(0.0, |s| s.speed.rad_per_s());
+        let _ = plan.replan(
+            &limits,
+            reverse,
+            AngularSpeed::from_rad_per_s(black_box(2.0)),
+            black_box(-0.1),
+            AngularSpeed::from_rad_per_s(black_box(0.0)),
+        );
+        acc += plan.segments().iter().map(|s| s.duration_s()).sum::<f32>();
+    }
+    acc
+}
+
 /// Exercises the swing governor's construction and per-tick path (estimator
 /// step, sensor correction, decision).
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn swing_governor() -> f32 {
     use swingdrive::{GovernorInput, GovernorParams, RequestGovernor, Setpoint, SwingGovernor};
     let suspension = if black_box(true) {
@@ -91,9 +155,54 @@ fn swing_governor() -> f32 {
     decision.admitted_rad_s + governor.certificate().slack_per_s
 }
 
+/// Exercises the fixed-point tick path: ramp, player, clamp and comparisons.
+#[cfg(feature = "fixed")]
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
+fn fixed_point() -> f32 {
+    use swingdrive::fixed_point::{
+        following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
+    };
+    let mut acc = 0.0;
+    let Ok(limits) = RampLimits::new(black_box(0.5), black_box(0.8), black_box(1.0)) else {
+        return acc;
+    };
+    let Ok(mut ramp) = FixedRamp::new(limits, Reverse::Allowed, black_box(1.0e-3)) else {
+        return acc;
+    };
+    let Ok(ceiling) = FixedCeiling::new(black_box(4.0), Reverse::Allowed) else {
+        return acc;
+    };
+    let Ok(over) = FixedSpeedLimit::new("overspeed_rad_s", black_box(4.2)) else {
+        return acc;
+    };
+    let Ok(follow) = FixedSpeedLimit::new("following_tolerance_rad_s", black_box(0.3)) else {
+        return acc;
+    };
+    let (request, _) = ceiling.clamp(Speed::from_bits(black_box(400_000)));
+    let _ = ramp.set_target(AngularSpeed::from_rad_per_s(request.to_num::<f32>()));
+    for _ in 0..black_box(100) {
+        let s = ramp.step();
+        let measured = Speed::from_bits(black_box(s.speed.to_bits() + 3));
+        if over.exceeded_by(measured) || following_error_exceeds(measured, s.speed, follow) {
+            acc += 1.0;
+        }
+        acc += s.acceleration.to_num::<f32>();
+    }
+    acc + ramp.setpoint().speed.to_num::<f32>()
+}
+
+#[cfg(not(feature = "fixed"))]
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
+fn fixed_point() -> f32 {
+    0.0
+}
+
 #[entry]
 fn main() -> ! {
-    let total = black_box(steady_state()) + black_box(swing_governor());
+    let total = black_box(steady_state())
+        + black_box(ramp())
+        + black_box(swing_governor())
+        + black_box(fixed_point());
     say(format_args!("no-panic image runs: {}", total.is_finite()));
     exit(0)
 }
