@@ -38,6 +38,9 @@ enum Command {
     /// Replay a speed profile and report peak angle, residual swing, peak
     /// load factor and chain slack.
     Replay(ReplayArgs),
+    /// Adversarial search for the worst peak swing angle over admissible
+    /// request sequences, without and with the swing governor.
+    Envelope(EnvelopeArgs),
     /// Design a swing-free speed change between two steady angles and write
     /// it as a firmware table, CSV and SVG.
     Design(DesignArgs),
@@ -67,6 +70,25 @@ struct CycleArgs {
     /// Write a plot of speeds, swing angle and program step as SVG to this file.
     #[arg(long)]
     svg: Option<PathBuf>,
+}
+
+#[derive(Args)]
+struct EnvelopeArgs {
+    /// Ride description (TOML); the certified angle and limits come from its
+    /// [interlock] table when it has one.
+    ride: PathBuf,
+    /// Certified angle, degrees (needed without an [interlock] table).
+    #[arg(long)]
+    certified_deg: Option<f32>,
+    /// Random request sequences.
+    #[arg(long, default_value_t = 1000)]
+    random: usize,
+    /// Hill-climb restarts (each objective).
+    #[arg(long, default_value_t = 20)]
+    restarts: usize,
+    /// Seed of the search.
+    #[arg(long, default_value_t = 1)]
+    seed: u64,
 }
 
 #[derive(Args)]
@@ -108,6 +130,12 @@ struct ReplayArgs {
     /// Write a plot of speed and swing angles as SVG to this file.
     #[arg(long)]
     svg: Option<PathBuf>,
+    /// Also treat the profile as the *requested* speed and pass it through
+    /// the interlock (ceiling, swing governor, ramp) of the ride file's
+    /// [interlock] table; reports `governed_peak_angle_deg` beside the direct
+    /// `peak_angle_deg`.
+    #[arg(long)]
+    through_interlock: bool,
 }
 
 /// Why a command did not succeed.
@@ -128,6 +156,7 @@ fn main() -> ExitCode {
     let result = match &cli.command {
         Command::Table(args) => table(args),
         Command::Replay(args) => replay_command(args, cli.json),
+        Command::Envelope(args) => envelope_command(args),
         Command::Design(args) => design_command(args),
         Command::Cycle(args) => cycle_command(args),
     };
@@ -332,14 +361,27 @@ fn replay_command(args: &ReplayArgs, json_out: bool) -> Result<Report, Failure> 
         write_file(path, svg.as_bytes())?;
     }
 
+    let governed = if args.through_interlock {
+        Some(through_interlock(&ride, &profile, args.settle)?)
+    } else {
+        None
+    };
     let s = &outcome.summary;
     let limits = ride.limits.check(&s.profile);
     let passed = !s.chain_slack && limits.ok;
-    let text = if json_out {
+    let mut text = if json_out {
         String::new()
     } else {
         replay_text(args, &ride, &outcome.summary, &limits, passed)
     };
+    if let (Some(g), false) = (&governed, json_out) {
+        text.push_str(&format!(
+            "through the interlock (ceiling, swing governor, ramp): peak angle {:.2} deg, sideways {:.2} deg{}\n",
+            g.peak_deg,
+            g.sideways_deg,
+            if g.tripped { ", the interlock tripped" } else { "" }
+        ));
+    }
     let mut json = serde_json::to_value(s).map_err(|e| Failure::Input(e.to_string()))?;
     if let Value::Object(map) = &mut json {
         map.insert("ride_file".into(), json!(args.ride.display().to_string()));
@@ -369,8 +411,88 @@ fn replay_command(args: &ReplayArgs, json_out: bool) -> Result<Report, Failure> 
             json!(args.svg.as_ref().map(|p| p.display().to_string())),
         );
         map.insert("passed".into(), json!(passed));
+        if let Some(g) = &governed {
+            map.insert("governed_peak_angle_deg".into(), json!(g.peak_deg));
+            map.insert("governed_peak_tangential_deg".into(), json!(g.sideways_deg));
+            map.insert("governed_tripped".into(), json!(g.tripped));
+        }
     }
     Ok(Report { text, json, passed })
+}
+
+/// The profile as a request through the interlock with the swing governor.
+struct Governed {
+    peak_deg: f64,
+    sideways_deg: f64,
+    tripped: bool,
+}
+
+/// Ticks the ride file's interlock with a swing governor on the profile as
+/// the requested speed (the drive follows the command exactly), then
+/// simulates the command.
+fn through_interlock(
+    ride: &RideFile,
+    profile: &SpeedProfile,
+    settle_s: f64,
+) -> Result<Governed, Failure> {
+    use swingdrive::interlock::{EventKind, Sample, TripCause, DEFAULT_EVENT_CAPACITY};
+    use swingdrive::protection::closed_loop::simulate_peak;
+    use swingdrive::{GovernorParams, Interlock, SwingGovernor, TickInputs};
+    let Some(params) = ride.interlock else {
+        return Err(Failure::Input(
+            "--through-interlock needs an [interlock] table in the ride file".into(),
+        ));
+    };
+    let config = *params.config();
+    let governor_params = GovernorParams::demo(
+        &ride.geometry,
+        config.certified_angle_deg,
+        params.ramp_limits().max_jerk_rad_s3(),
+    );
+    let mut governor = SwingGovernor::new(&ride.geometry, &governor_params)
+        .map_err(|e| Failure::Input(format!("swing governor: {e}")))?;
+    governor.confirm_rest(0.0);
+    let mut interlock = Interlock::<DEFAULT_EVENT_CAPACITY>::new(params);
+    let dt = config.tick_s;
+    let end = profile.end_s() + settle_s;
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    let ticks = ((end - profile.start_s()) / f64::from(dt)).ceil() as u64;
+    let mut measured = 0.0_f32;
+    let mut samples = vec![(profile.start_s(), 0.0)];
+    let every = (0.05 / f64::from(dt)).ceil().max(1.0) as u64;
+    let mut tripped = false;
+    for k in 0..ticks {
+        #[allow(clippy::cast_precision_loss)]
+        let t = profile.start_s() + k as f64 * f64::from(dt);
+        #[allow(clippy::cast_possible_truncation)]
+        let request = profile.command_at(t).0 as f32;
+        let inputs = TickInputs {
+            request_rad_s: request,
+            #[allow(clippy::cast_possible_truncation)]
+            speed: Sample::new(measured, (k % 256) as u8),
+            second_speed: Sample::new(measured, (k % 256) as u8),
+            angle: Sample::ABSENT,
+            run_enable: true,
+            reset: false,
+        };
+        let out = interlock.tick_with(&inputs, dt, &mut governor);
+        measured = out.command.speed.rad_per_s();
+        #[allow(clippy::cast_precision_loss)]
+        if (k + 1) % every == 0 || k + 1 == ticks {
+            samples.push((t + f64::from(dt), f64::from(measured)));
+        }
+    }
+    tripped |= interlock
+        .events()
+        .iter()
+        .any(|e| matches!(e.kind, EventKind::Trip(cause) if cause != TripCause::RunEnableDropped));
+    let (peak_deg, sideways_deg) =
+        simulate_peak(&ride.seat, &samples, 0.0).map_err(|e| Failure::Input(e.to_string()))?;
+    Ok(Governed {
+        peak_deg,
+        sideways_deg,
+        tripped,
+    })
 }
 
 fn file_name(path: &Path) -> String {
@@ -475,6 +597,87 @@ fn replay_text(
         "result: FAIL (profile outside the ride's limits)\n"
     });
     t
+}
+
+/// The adversarial search on one ride (see docs/dynamic_protection.md).
+fn envelope_command(args: &EnvelopeArgs) -> Result<Report, Failure> {
+    use swingdrive::protection::closed_loop::Rig;
+    use swingdrive::protection::search::{search, SearchSize};
+    use swingdrive::{GovernorParams, RampLimits};
+    let ride = RideFile::from_path(&args.ride).map_err(|e| Failure::Input(e.to_string()))?;
+    let (certified, ceiling, limits) = match (&ride.interlock, args.certified_deg) {
+        (_, Some(deg)) => {
+            let ceiling = ride
+                .geometry
+                .speed_for_angle(Angle::from_deg(deg))
+                .map_err(|e| Failure::Input(format!("--certified-deg: {e}")))?
+                .rad_per_s();
+            #[allow(clippy::cast_possible_truncation)]
+            let limits = RampLimits::new(
+                ride.limits.max_accel_rad_s2 as f32,
+                ride.limits.max_decel_rad_s2 as f32,
+                ride.limits.max_jerk_rad_s3 as f32,
+            )
+            .map_err(|e| Failure::Input(e.to_string()))?;
+            (deg, ceiling, limits)
+        }
+        (Some(p), None) => (
+            p.config().certified_angle_deg,
+            p.ceiling().ceiling_rad_s(),
+            p.ramp_limits(),
+        ),
+        (None, None) => {
+            return Err(Failure::Input(
+                "the ride file has no [interlock] table: give --certified-deg".into(),
+            ))
+        }
+    };
+    let params = GovernorParams::demo(&ride.geometry, certified, limits.max_jerk_rad_s3());
+    let rig = Rig {
+        geometry: ride.geometry,
+        limits,
+        stop_limits: limits,
+        ceiling_rad_s: ceiling,
+        params,
+    };
+    let size = SearchSize {
+        random: args.random,
+        restarts: args.restarts,
+        steps: 10,
+        duration_s: 150,
+        seed: args.seed,
+    };
+    let r = search(&rig, &size);
+    let passed = r.governed_exceedances == 0 && r.governed_faults == 0;
+    let text = format!(
+        "certified angle {certified} deg, steady-state ceiling {ceiling:.4} rad/s\n\
+         runs: {} (each without and with the governor)\n\
+         worst peak without governor: {:.2} deg ({})\n\
+         worst peak with governor:    {:.2} deg ({}), sideways {:.2} deg\n\
+         governed runs above the certified angle: {}, with a governor fault: {}\n",
+        r.runs,
+        r.bare.peak_deg,
+        r.bare.case,
+        r.governed.peak_deg,
+        r.governed.case,
+        r.governed.sideways_deg,
+        r.governed_exceedances,
+        r.governed_faults
+    );
+    let json = json!({
+        "certified_angle_deg": certified,
+        "ceiling_rad_s": ceiling,
+        "runs": r.runs,
+        "peak_angle_deg": r.bare.peak_deg,
+        "peak_case": r.bare.case,
+        "governed_peak_angle_deg": r.governed.peak_deg,
+        "governed_peak_case": r.governed.case,
+        "governed_sideways_deg": r.governed.sideways_deg,
+        "governed_exceedances": r.governed_exceedances,
+        "governed_faults": r.governed_faults,
+        "note": "governor parameters: GovernorParams::demo (length band +-2 %, speed uncertainty 0.005 rad/s)",
+    });
+    Ok(Report { text, json, passed })
 }
 
 #[derive(Args)]

@@ -30,7 +30,7 @@ use crate::units::Angle;
 
 /// Cells of the speed grid: cell i spans the speeds whose steady angles lie
 /// between i/N and (i+1)/N of the certified angle.
-pub const CELLS: usize = 48;
+pub const CELLS: usize = 32;
 
 /// Sample intervals over the cone for the bound K (polar × azimuthal).
 pub const K_POLAR: usize = 16;

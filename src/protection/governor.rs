@@ -83,9 +83,6 @@ pub struct Certificate {
     pub slack_per_s: f32,
     /// Whether the admitted target is certified.
     pub certified: bool,
-    /// Slack of a stop to zero from the present state (the same bound; a
-    /// negative value says the bound cannot vouch for a stop from here).
-    pub stop_slack_per_s: f32,
     /// Largest swing energy bound √S over the lengths, 1/s.
     pub swing_per_s: f32,
 }
@@ -167,7 +164,6 @@ impl SwingGovernor {
             last: Certificate {
                 slack_per_s: 0.0,
                 certified: false,
-                stop_slack_per_s: 0.0,
                 swing_per_s: 0.0,
             },
         })
@@ -220,6 +216,16 @@ impl SwingGovernor {
             .fold(f32::INFINITY, f32::min)
     }
 
+    /// Slack of a controlled stop to zero from the commanded state (`v`,
+    /// `a`) at the ramp's jerk, by the same bound (a negative value says the
+    /// bound cannot vouch for a stop from here; docs/dynamic_protection.md
+    /// explains why it rarely can from high speed, and how stops are checked
+    /// instead). Not part of the per-tick decision.
+    #[must_use]
+    pub fn stop_slack(&self, v: f32, a: f32) -> f32 {
+        self.slack(self.estimator.speed_rad_s(), v, a, 0.0)
+    }
+
     /// Largest ½ G over the lengths and cells, 1/s per rad/s.
     fn steepest_growth(&self) -> f32 {
         self.envelopes
@@ -263,7 +269,6 @@ impl SwingGovernor {
         let request = input.clamped_request_rad_s;
         let margin = self.params.margin_per_s;
         let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
-        let stop_slack = self.slack(measured, v, a, 0.0);
         let swing = self
             .envelopes
             .iter()
@@ -274,7 +279,6 @@ impl SwingGovernor {
             *last = Certificate {
                 slack_per_s: slack,
                 certified,
-                stop_slack_per_s: stop_slack,
                 swing_per_s: swing,
             };
             admitted

@@ -214,7 +214,7 @@ fn swing_governor() {
     // 4: swing governor tick: estimator step (3 lengths, chain) + decision
     measure(4, || governor.govern(black_box(&tick)));
     let v = setpoint.speed.rad_per_s();
-    // 5: swing governor, one certificate evaluation (3 lengths): a decision makes 2 to 4
+    // 5: swing governor, one certificate evaluation (3 lengths): a decision makes 1 to 3
     measure(5, || {
         governor.slack(
             black_box(v),
