@@ -249,3 +249,68 @@ fn bad_parameters_are_named() {
         6553
     );
 }
+
+/// Demo data: an invented ride's safety parameters.
+fn demo_params() -> swingdrive::SafetyParams {
+    swingdrive::SafetyParams::new(swingdrive::SafetyConfig {
+        certified_angle_deg: 40.0,
+        max_load_factor: None,
+        mechanical_max_rad_s: 1.6,
+        hub_offset_max_m: 3.6,
+        length_max_m: 6.2,
+        gravity_min_mps2: 9.79,
+        speed_margin_rad_s: 0.02,
+        max_acceleration_rad_s2: 0.8,
+        max_deceleration_rad_s2: 1.0,
+        max_jerk_rad_s3: 4.0,
+        overspeed_tolerance_rad_s: 0.05,
+        following_tolerance_rad_s: 0.06,
+        channel_tolerance_rad_s: 0.04,
+        sensor_max_rad_s: 10.0,
+        standstill_rad_s: 0.01,
+        tick_s: 0.001,
+        overrun_tick_s: 0.002,
+        stop_time_margin_s: 1.0,
+        brake_delay_s: 5.0,
+        debounce_ticks: 3,
+        stale_ticks: 5,
+        standstill_ticks: 20,
+        reverse: Reverse::Allowed,
+        second_channel: true,
+        angle_sensor: false,
+    })
+    .unwrap()
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(2000))]
+
+    /// On the same measurement (an I16F16 value, exactly an f32 below 256 rad/s),
+    /// every fixed-point finding that trips is raised whenever the interlock's
+    /// f32 comparison (its expressions, src/interlock/mod.rs) raises it, and
+    /// "still" is never claimed where the f32 comparison denies it.
+    #[test]
+    fn monitor_trips_no_later_than_the_f32_interlock(
+        m in -(200_i32 << 16)..(200 << 16),
+        d in -(1_i32 << 16)..(1 << 16),
+        e in -(1_i32 << 14)..(1 << 14),
+    ) {
+        use swingdrive::fixed_point::FixedMonitor;
+        let params = demo_params();
+        let c = params.config();
+        let mon = FixedMonitor::from_params(&params).unwrap();
+        let (meas, cmd, second) = (I16F16::from_bits(m), I16F16::from_bits(m.saturating_add(d)), I16F16::from_bits(m.saturating_add(e)));
+        let (mf, cf, sf) = (meas.to_num::<f32>(), cmd.to_num::<f32>(), second.to_num::<f32>());
+        let f = mon.check(meas, Some(second), cmd);
+        let overspeed = params.ceiling().ceiling_rad_s() + c.overspeed_tolerance_rad_s;
+        if mf.abs() > overspeed { prop_assert!(f.overspeed); }
+        if (mf - cf).abs() > c.following_tolerance_rad_s { prop_assert!(f.following_error); }
+        if mf.abs() > cf.abs() + c.following_tolerance_rad_s { prop_assert!(f.stop_ahead); }
+        if mf.abs() + c.following_tolerance_rad_s < cf.abs() { prop_assert!(f.stop_behind); }
+        if (mf - sf).abs() > c.channel_tolerance_rad_s { prop_assert!(f.channels_disagree); }
+        if f.still { prop_assert!(mf.abs() <= c.standstill_rad_s && sf.abs() <= c.standstill_rad_s); }
+        // The clamp admits nothing beyond the f32 ceiling.
+        let (clamped, _) = mon.ceiling().clamp(meas);
+        prop_assert!(clamped.to_num::<f32>().abs() <= params.ceiling().ceiling_rad_s());
+    }
+}

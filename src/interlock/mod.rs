@@ -278,7 +278,7 @@ impl<const N: usize> Interlock<N> {
             self.record(EventKind::RequestRefused, measured, request);
         }
         let ceiling = self.params.ceiling().ceiling_rad_s();
-        let clamped = self.request_rad_s.clamp(self.lower_rad_s, ceiling);
+        let clamped = within(self.request_rad_s, self.lower_rad_s, ceiling);
         let moving_state = matches!(
             self.state,
             InterlockState::Running | InterlockState::Limiting
@@ -299,7 +299,7 @@ impl<const N: usize> Interlock<N> {
             self.state,
             InterlockState::Running | InterlockState::Limiting
         ) {
-            let target = admitted.clamp(self.lower_rad_s, ceiling);
+            let target = within(admitted, self.lower_rad_s, ceiling);
             let limiting =
                 clamped != self.request_rad_s || decision.status == GovernorStatus::Restricting;
             self.state = if limiting {
@@ -567,6 +567,23 @@ impl<const N: usize> Interlock<N> {
     #[must_use]
     pub const fn ticks(&self) -> u32 {
         self.tick
+    }
+}
+
+/// `x` limited to `[lo, hi]` in plain comparisons: `f32::clamp` asserts
+/// `lo <= hi`, a panic path the no-panic link check (firmware/src/bin/nopanic.rs)
+/// finds reachable because the optimiser cannot see that the ceiling is
+/// positive. The upper bound wins if the two ever crossed; NaN gives `lo`.
+#[inline]
+fn within(x: f32, lo: f32, hi: f32) -> f32 {
+    if x > hi {
+        hi
+    } else if x >= lo {
+        x
+    } else if lo <= hi {
+        lo
+    } else {
+        hi
     }
 }
 
