@@ -22,11 +22,11 @@ const EPS: f64 = f32::EPSILON as f64;
 /// One step of I16F16.
 const LSB: f64 = 1.0 / 65_536.0;
 /// Hand calculation, common practice (docs/fixed_point.md): rounding the output
-/// to nearest is at most half a step, 2⁻¹⁷; the internal rounding is at most
-/// 2⁻³¹ + t·A·2⁻²⁹ + A·2^(sh−37) (t: time from the nearer anchor, A: the
-/// segment's largest |acceleration|, 2^sh quanta: its time unit), below 2⁻²²
-/// for the plans drawn here (t ≤ 130 s, A ≤ 4.5 rad/s², hand calculation:
-/// 130·4.5·2⁻²⁹ ≈ 1.1·10⁻⁶ < 2⁻¹⁹ ... so 2⁻²² holds only where t·A ≤ 2⁷).
+/// to nearest is at most half a step, 2⁻¹⁷; the internal terms (2⁻³² + 2⁻³³ +
+/// A·2^(sh−37) + t·A·2⁻²⁸, t ≤ half a segment, A its largest |acceleration|)
+/// stay below 2⁻²² for the plans drawn here: t·A ≤ 20 rad/s (jerk phases:
+/// A ≤ 4.5 rad/s², A/j ≤ 9 s; holds: t·A ≤ the speed range of 12 rad/s), and
+/// 20·2⁻²⁸ < 2⁻²³.
 const PLAYER_BOUND: f64 = LSB / 2.0 + LSB / 64.0;
 
 fn q_to_s(q: u64) -> f64 {

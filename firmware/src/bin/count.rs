@@ -215,6 +215,34 @@ fn interlock_counts() {
     let i = inputs(0.5, 0.0);
     // 23: Interlock::tick during the controlled stop
     measure(23, || il.tick(&i, dt));
+
+    // Reverse allowed: accelerating forward, the request flips to reverse.
+    let Ok(params) = SafetyParams::new(scenario_config(black_box(true))) else {
+        exit(2)
+    };
+    let mut il: Interlock = Interlock::new(params);
+    let mut measured = 0.0_f32;
+    for k in 0..400_u32 {
+        let i = TickInputs {
+            request_rad_s: 0.9,
+            speed: Sample::new(measured, k as u8),
+            second_speed: Sample::new(measured, k as u8),
+            angle: Sample::new(0.3, k as u8),
+            run_enable: true,
+            reset: false,
+        };
+        measured = il.tick(&i, dt).command.speed.rad_per_s();
+    }
+    let i = TickInputs {
+        request_rad_s: black_box(-0.9),
+        speed: Sample::new(black_box(measured), 144),
+        second_speed: Sample::new(black_box(measured), 144),
+        angle: Sample::new(black_box(0.3), 144),
+        run_enable: black_box(true),
+        reset: black_box(false),
+    };
+    // 24: Interlock::tick with a reversing request while accelerating (re-plan through zero speed)
+    measure(24, || il.tick(&i, dt));
 }
 
 /// The fixed-point tick: ramp step, ceiling clamp of the request and the
