@@ -282,7 +282,7 @@ impl<const N: usize> Interlock<N> {
             self.refuse(request, measured);
         }
         let ceiling = self.params.ceiling.ceiling_rad_s();
-        let clamped = self.request_rad_s.clamp(self.lower_rad_s, ceiling);
+        let clamped = within(self.request_rad_s, self.lower_rad_s, ceiling);
         let moving = self.state.follows_requests();
         // The governor is promised a checked tick period; after an overrun
         // (already tripped above) it is not asked.
@@ -446,7 +446,7 @@ impl<const N: usize> Interlock<N> {
             return 0.0;
         }
         let ceiling = self.params.ceiling.ceiling_rad_s();
-        let target = decision.admitted_rad_s.clamp(self.lower_rad_s, ceiling);
+        let target = within(decision.admitted_rad_s, self.lower_rad_s, ceiling);
         self.state = if clamped.to_bits() != self.request_rad_s.to_bits()
             || decision.status == GovernorStatus::Restricting
             || target.to_bits() != clamped.to_bits()
@@ -703,6 +703,23 @@ impl<const N: usize> Interlock<N> {
     #[must_use]
     pub const fn ticks(&self) -> u32 {
         self.tick
+    }
+}
+
+/// `x` limited to `[lo, hi]` in plain comparisons: `f32::clamp` asserts
+/// `lo <= hi`, a panic path the no-panic link check (firmware/src/bin/nopanic.rs)
+/// finds reachable because the optimiser cannot see that the ceiling is
+/// positive. The upper bound wins if the two ever crossed; NaN gives `lo`.
+#[inline]
+fn within(x: f32, lo: f32, hi: f32) -> f32 {
+    if x > hi {
+        hi
+    } else if x >= lo {
+        x
+    } else if lo <= hi {
+        lo
+    } else {
+        hi
     }
 }
 
