@@ -20,6 +20,7 @@ echo
 echo "| measurement | ${core[thumbv7em-none-eabihf]} | ${core[thumbv6m-none-eabi]} |"
 echo "|---|---:|---:|"
 declare -A counts
+declare -A order
 for target in thumbv7em-none-eabihf thumbv6m-none-eabi; do
     cargo build -q --release --target "$target" --bin count
     # shellcheck disable=SC2086
@@ -48,13 +49,51 @@ echo "### Image sizes (llvm-size -A; flash = .vector_table + .text + .rodata + .
 echo
 echo "| image | core | flash bytes | static RAM bytes |"
 echo "|---|---|---:|---:|"
+# flash and RAM of one image: "flash ram"
+image_size() {
+    "$tools/llvm-size" -A "$1" | awk '
+        $1 == ".vector_table" || $1 == ".text" || $1 == ".rodata" { flash += $2 }
+        $1 == ".data" { flash += $2; ram += $2 }
+        $1 == ".bss" || $1 == ".uninit" { ram += $2 }
+        END { printf "%d %d\n", flash, ram }'
+}
 for target in thumbv7em-none-eabihf thumbv6m-none-eabi; do
     for bin in nopanic count; do
         cargo build -q --release --target "$target" --bin "$bin"
-        "$tools/llvm-size" -A "target/$target/release/$bin" | awk -v bin="$bin" -v core="${core[$target]}" '
-            $1 == ".vector_table" || $1 == ".text" || $1 == ".rodata" { flash += $2 }
-            $1 == ".data" { flash += $2; ram += $2 }
-            $1 == ".bss" || $1 == ".uninit" { ram += $2 }
-            END { printf "| %s | %s | %d | %d |\n", bin, core, flash, ram }'
+        read -r flash ram < <(image_size "target/$target/release/$bin")
+        echo "| $bin | ${core[$target]} | $flash | $ram |"
     done
+done
+echo
+echo "### Footprint per feature set (minimal images without printing, minus the footprint_base image)"
+echo
+echo "Each image checks a parameter set at start-up (SafetyParams::new, with the speed-ceiling solve), then ticks."
+echo
+echo "| image | core | profile | flash bytes above base | static RAM bytes |"
+echo "|---|---|---|---:|---:|"
+for target in thumbv7em-none-eabihf thumbv6m-none-eabi; do
+    for profile in release release-size; do
+        cargo build -q --profile "$profile" --target "$target" --bin footprint_base
+        read -r base _ < <(image_size "target/$target/$profile/footprint_base")
+        for bin in footprint_interlock footprint_fixed; do
+            cargo build -q --profile "$profile" --target "$target" --bin "$bin"
+            read -r flash ram < <(image_size "target/$target/$profile/$bin")
+            echo "| $bin | ${core[$target]} | $profile | $((flash - base)) | $ram |"
+        done
+    done
+done
+echo
+echo "### State struct sizes (core::mem::size_of, printed by the checks image)"
+echo
+echo "| type | Cortex-M4F bytes | Cortex-M0 bytes |"
+echo "|---|---:|---:|"
+declare -A sizes
+for target in thumbv7em-none-eabihf thumbv6m-none-eabi; do
+    while read -r _ name _ n; do
+        sizes["$target/$name"]="$n"
+        order["$name"]=1
+    done < <(cargo run -q --release --target "$target" --bin checks 2>/dev/null | grep '^size_of ')
+done
+cargo run -q --release --target thumbv7em-none-eabihf --bin checks 2>/dev/null | grep '^size_of ' | while read -r _ name _ _; do
+    echo "| $name | ${sizes["thumbv7em-none-eabihf/$name"]} | ${sizes["thumbv6m-none-eabi/$name"]} |"
 done

@@ -99,3 +99,44 @@ fn design_exit_codes() {
     assert_eq!(json["passed"], false);
     assert!(json["error"].as_str().unwrap().contains("limits"));
 }
+
+/// Demo data: the small ride with an interlock parameter set (certified 40°).
+const INTERLOCK: &str = "[interlock]\ncertified_angle_deg = 40.0\nmechanical_max_rad_s = 3.0\n\
+speed_margin_rad_s = 0.02\nmax_acceleration_rad_s2 = 0.4\nmax_deceleration_rad_s2 = 0.5\n\
+max_jerk_rad_s3 = 0.4\noverspeed_tolerance_rad_s = 0.05\nfollowing_tolerance_rad_s = 0.08\n\
+channel_tolerance_rad_s = 0.04\nsensor_max_rad_s = 5.0\nstandstill_rad_s = 0.01\ntick_s = 0.001\n\
+overrun_tick_s = 0.002\nstop_time_margin_s = 2.0\nbrake_delay_s = 30.0\ndebounce_ticks = 5\n\
+stale_ticks = 10\nstandstill_ticks = 50\nreverse_permitted = false\nsecond_channel = true\n\
+angle_sensor = false\n";
+
+#[test]
+fn with_an_interlock_table_the_stamp_is_the_parameter_sets() {
+    let d = dir("design_interlock");
+    let ride = d.join("ride.toml");
+    std::fs::write(&ride, format!("{RIDE}{INTERLOCK}")).unwrap();
+    let params = swingdrive::ride_file::RideFile::from_path(&ride)
+        .unwrap()
+        .interlock
+        .unwrap();
+    let table = d.join("t.bin");
+    let r = ride.to_str().unwrap();
+    let (code, json) = design(&[
+        r,
+        "--to-deg",
+        "30",
+        "--duration",
+        "11",
+        "--table",
+        table.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{json}");
+    assert_eq!(json["stamp_source"], "interlock");
+    assert_eq!(json["stamp"], format!("{:#010x}", params.stamp()));
+    let bytes = std::fs::read(&table).unwrap();
+    assert!(ProfileTable::parse(&bytes, params.stamp()).is_ok());
+    assert!(ProfileTable::parse(&bytes, 0).is_err());
+    // An end angle beyond the certified one is above the ceiling: bad input.
+    let (code, json) = design(&[r, "--to-deg", "45", "--duration", "11"]);
+    assert_eq!(code, 2);
+    assert!(json["error"].as_str().unwrap().contains("ceiling"));
+}

@@ -33,9 +33,12 @@ fn hal_types_implement_defmt_format() {
 #[test]
 fn fixed_point_types_implement_defmt_format() {
     use swingdrive::fixed_point::{
-        FixedCeiling, FixedRamp, FixedRampPlayer, FixedSetpoint, FixedSpeedLimit,
+        FixedCeiling, FixedFindings, FixedMonitor, FixedRamp, FixedRampPlayer, FixedSetpoint,
+        FixedSpeedLimit,
     };
     loggable::<FixedCeiling>();
+    loggable::<FixedFindings>();
+    loggable::<FixedMonitor>();
     loggable::<FixedRamp>();
     loggable::<FixedRampPlayer>();
     loggable::<FixedSetpoint>();

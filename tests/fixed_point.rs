@@ -22,11 +22,11 @@ const EPS: f64 = f32::EPSILON as f64;
 /// One step of I16F16.
 const LSB: f64 = 1.0 / 65_536.0;
 /// Hand calculation, common practice (docs/fixed_point.md): rounding the output
-/// to nearest is at most half a step, 2⁻¹⁷; the internal rounding is at most
-/// 2⁻³¹ + t·A·2⁻²⁹ + A·2^(sh−37) (t: time from the nearer anchor, A: the
-/// segment's largest |acceleration|, 2^sh quanta: its time unit), below 2⁻²²
-/// for the plans drawn here (t ≤ 130 s, A ≤ 4.5 rad/s², hand calculation:
-/// 130·4.5·2⁻²⁹ ≈ 1.1·10⁻⁶ < 2⁻¹⁹ ... so 2⁻²² holds only where t·A ≤ 2⁷).
+/// to nearest is at most half a step, 2⁻¹⁷; the internal terms (2⁻³² + 2⁻³³ +
+/// A·2^(sh−37) + t·A·2⁻²⁸, t ≤ half a segment, A its largest |acceleration|)
+/// stay below 2⁻²² for the plans drawn here: t·A ≤ 20 rad/s (jerk phases:
+/// A ≤ 4.5 rad/s², A/j ≤ 9 s; holds: t·A ≤ the speed range of 12 rad/s), and
+/// 20·2⁻²⁸ < 2⁻²³.
 const PLAYER_BOUND: f64 = LSB / 2.0 + LSB / 64.0;
 
 fn q_to_s(q: u64) -> f64 {
@@ -248,4 +248,69 @@ fn bad_parameters_are_named() {
         FixedSpeedLimit::new("x", 0.1).unwrap().rad_s().to_bits(),
         6553
     );
+}
+
+/// Demo data: an invented ride's safety parameters.
+fn demo_params() -> swingdrive::SafetyParams {
+    swingdrive::SafetyParams::new(swingdrive::SafetyConfig {
+        certified_angle_deg: 40.0,
+        max_load_factor: None,
+        mechanical_max_rad_s: 1.6,
+        hub_offset_max_m: 3.6,
+        length_max_m: 6.2,
+        gravity_min_mps2: 9.79,
+        speed_margin_rad_s: 0.02,
+        max_acceleration_rad_s2: 0.8,
+        max_deceleration_rad_s2: 1.0,
+        max_jerk_rad_s3: 4.0,
+        overspeed_tolerance_rad_s: 0.05,
+        following_tolerance_rad_s: 0.06,
+        channel_tolerance_rad_s: 0.04,
+        sensor_max_rad_s: 10.0,
+        standstill_rad_s: 0.01,
+        tick_s: 0.001,
+        overrun_tick_s: 0.002,
+        stop_time_margin_s: 1.0,
+        brake_delay_s: 5.0,
+        debounce_ticks: 3,
+        stale_ticks: 5,
+        standstill_ticks: 20,
+        reverse: Reverse::Allowed,
+        second_channel: true,
+        angle_sensor: false,
+    })
+    .unwrap()
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(2000))]
+
+    /// On the same measurement (an I16F16 value, exactly an f32 below 256 rad/s),
+    /// every fixed-point finding that trips is raised whenever the interlock's
+    /// f32 comparison (its expressions, src/interlock/mod.rs) raises it, and
+    /// "still" is never claimed where the f32 comparison denies it.
+    #[test]
+    fn monitor_trips_no_later_than_the_f32_interlock(
+        m in -(200_i32 << 16)..(200 << 16),
+        d in -(1_i32 << 16)..(1 << 16),
+        e in -(1_i32 << 14)..(1 << 14),
+    ) {
+        use swingdrive::fixed_point::FixedMonitor;
+        let params = demo_params();
+        let c = params.config();
+        let mon = FixedMonitor::from_params(&params).unwrap();
+        let (meas, cmd, second) = (I16F16::from_bits(m), I16F16::from_bits(m.saturating_add(d)), I16F16::from_bits(m.saturating_add(e)));
+        let (mf, cf, sf) = (meas.to_num::<f32>(), cmd.to_num::<f32>(), second.to_num::<f32>());
+        let f = mon.check(meas, Some(second), cmd);
+        let overspeed = params.ceiling().ceiling_rad_s() + c.overspeed_tolerance_rad_s;
+        if mf.abs() > overspeed { prop_assert!(f.overspeed); }
+        if (mf - cf).abs() > c.following_tolerance_rad_s { prop_assert!(f.following_error); }
+        if mf.abs() > cf.abs() + c.following_tolerance_rad_s { prop_assert!(f.stop_ahead); }
+        if mf.abs() + c.following_tolerance_rad_s < cf.abs() { prop_assert!(f.stop_behind); }
+        if (mf - sf).abs() > c.channel_tolerance_rad_s { prop_assert!(f.channels_disagree); }
+        if f.still { prop_assert!(mf.abs() <= c.standstill_rad_s && sf.abs() <= c.standstill_rad_s); }
+        // The clamp admits nothing beyond the f32 ceiling.
+        let (clamped, _) = mon.ceiling().clamp(meas);
+        prop_assert!(clamped.to_num::<f32>().abs() <= params.ceiling().ceiling_rad_s());
+    }
 }

@@ -44,6 +44,32 @@ enum Command {
     /// Design a swing-free speed change between two steady angles and write
     /// it as a firmware table, CSV and SVG.
     Design(DesignArgs),
+    /// Run a ride-cycle program on the simulated ride, through the interlock,
+    /// and report per step the duration, peak angle, residual swing and load.
+    Cycle(CycleArgs),
+}
+
+#[derive(Args)]
+struct CycleArgs {
+    /// Ride description (TOML) with [drive] and [interlock] tables.
+    ride: PathBuf,
+    /// Ride-cycle program (TOML, [[step]] tables).
+    program: PathBuf,
+    /// Answer every operator confirmation after 1 s where the program has no scripted answer.
+    #[arg(long)]
+    auto_confirm: bool,
+    /// Run without the swing governor (the speed ceiling alone protects the angle).
+    #[arg(long)]
+    no_governor: bool,
+    /// Freeze the primary speed channel at this time, s (fault injection).
+    #[arg(long)]
+    freeze_encoder_at: Option<f64>,
+    /// Write the run as CSV to this file.
+    #[arg(long)]
+    csv: Option<PathBuf>,
+    /// Write a plot of speeds, swing angle and program step as SVG to this file.
+    #[arg(long)]
+    svg: Option<PathBuf>,
 }
 
 #[derive(Args)]
@@ -132,6 +158,7 @@ fn main() -> ExitCode {
         Command::Replay(args) => replay_command(args, cli.json),
         Command::Envelope(args) => envelope_command(args),
         Command::Design(args) => design_command(args),
+        Command::Cycle(args) => cycle_command(args),
     };
     let mut stdout = std::io::stdout().lock();
     match result {
@@ -669,6 +696,9 @@ struct DesignArgs {
     /// Residual-swing target over the tolerance band, degrees.
     #[arg(long, default_value_t = 0.2)]
     target_deg: f64,
+    /// Also design (and check) every length with this light seat damping, 1/s.
+    #[arg(long)]
+    extra_damping: Option<f64>,
     /// Write the designed profile as CSV (time_s,speed_rad_s).
     #[arg(long)]
     csv: Option<PathBuf>,
@@ -714,6 +744,7 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
     let (from, to) = (speed(args.from_deg), speed(args.to_deg));
     let mut options = DesignOptions::default();
     options.residual_target_deg = args.target_deg;
+    options.extra_damping_per_s = args.extra_damping;
     let mut limits = ride.limits;
     let nominal_length = ride.seat.length_m();
     // The parameter set: its stamp, its length band and its certified limits.
@@ -767,6 +798,7 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
         "to_speed_rad_s": to,
         "length_band_m": [band.0, band.1],
         "residual_target_deg": args.target_deg,
+        "extra_damping_per_s": args.extra_damping,
         "time_optimal_duration_s": t_opt,
         "target_duration_bound_s": bound,
         "stamp": format!("{stamp:#010x}"),
@@ -969,6 +1001,138 @@ fn design_command(args: &DesignArgs) -> Result<Report, Failure> {
         "result: pass\n"
     } else {
         "result: FAIL (residual target not met)\n"
+    });
+    Ok(Report { text, json, passed })
+}
+
+fn cycle_command(args: &CycleArgs) -> Result<Report, Failure> {
+    use swingdrive::program_file::ProgramFile;
+    use swingdrive::sim::closed_loop::SensorFault;
+    use swingdrive::sim::cycle::{
+        governor_for, render_cycle_svg, run_cycle, write_cycle_csv, CycleOptions,
+    };
+
+    let ride = RideFile::from_path(&args.ride).map_err(|e| Failure::Input(e.to_string()))?;
+    let program =
+        ProgramFile::from_path(&args.program).map_err(|e| Failure::Input(e.to_string()))?;
+    let options = CycleOptions {
+        auto_confirm: args.auto_confirm,
+        governor: if args.no_governor {
+            None
+        } else {
+            governor_for(&ride)
+        },
+        fault: match args.freeze_encoder_at {
+            Some(t) if !t.is_finite() || t < 0.0 => {
+                return Err(Failure::Input(
+                    "--freeze-encoder-at must be a time of 0 s or more".into(),
+                ))
+            }
+            Some(t) => Some((t, SensorFault::FreezePrimary)),
+            None => None,
+        },
+        ..CycleOptions::default()
+    };
+    let mut stderr = std::io::stderr();
+    let show_progress = stderr.is_terminal();
+    let mut progress = |fraction: f64| {
+        let _ = write!(stderr, "\rcycle {:3.0}%", (fraction * 100.0).floor());
+        if fraction >= 1.0 {
+            let _ = writeln!(stderr);
+        }
+    };
+    let out = run_cycle(
+        &ride,
+        &program,
+        &options,
+        if show_progress {
+            Some(&mut progress)
+        } else {
+            None
+        },
+    )
+    .map_err(|e| Failure::Input(format!("{}: {e}", args.program.display())))?;
+    if let Some(path) = &args.csv {
+        let mut bytes = Vec::new();
+        write_cycle_csv(&out, &mut bytes)
+            .map_err(|e| Failure::Input(format!("{}: {e}", path.display())))?;
+        write_file(path, &bytes)?;
+    }
+    if let Some(path) = &args.svg {
+        let title = format!("{} on {}", file_name(&args.program), file_name(&args.ride));
+        let svg = render_cycle_svg(&out, &title).map_err(|e| Failure::Input(e.to_string()))?;
+        write_file(path, svg.as_bytes())?;
+    }
+    let certified = ride
+        .interlock
+        .map_or(f64::NAN, |p| f64::from(p.config().certified_angle_deg));
+    let passed = out.finished && out.peak_angle_deg <= certified;
+    let mut text = format!(
+        "cycle {} on {} ({} steps, governor {})\n\n",
+        program.name.as_deref().unwrap_or("(unnamed)"),
+        file_name(&args.ride),
+        program.steps.len(),
+        if options.governor.is_some() {
+            "on"
+        } else {
+            "off"
+        }
+    );
+    text.push_str(
+        "step  line  what                                  time s  peak deg  residual deg  load\n",
+    );
+    for (i, s) in out.steps.iter().enumerate() {
+        match &s.report {
+            Some(r) => text.push_str(&format!(
+                "{:>4}  {:>4}  {:<36}  {:>6.1}  {:>8.2}  {:>12}  {:>4.3}\n",
+                i + 1,
+                s.line,
+                s.title,
+                r.duration_s,
+                r.peak_angle_deg,
+                r.residual_swing_deg
+                    .map_or_else(|| "-".to_owned(), |d| format!("{d:.2}")),
+                r.peak_load_factor
+            )),
+            None => text.push_str(&format!(
+                "{:>4}  {:>4}  {:<36}  not reached\n",
+                i + 1,
+                s.line,
+                s.title
+            )),
+        }
+    }
+    text.push_str("\nevents\n");
+    for e in &out.events {
+        text.push_str(&format!("  {:>8.2} s  {}\n", e.time_s, e.what));
+    }
+    text.push_str(&format!(
+        "\npeak angle {:.2} deg (certified {certified:.1}), peak load factor {:.3}, the interlock limited the request for {:.1} s\n",
+        out.peak_angle_deg, out.peak_load_factor, out.restricted_s
+    ));
+    if let Some(cause) = out.trip {
+        text.push_str(&format!("tripped: {cause:?}; the ride was stopped\n"));
+    }
+    text.push_str(if passed {
+        "result: pass\n"
+    } else {
+        "result: FAIL (not finished, or peak angle above the certified angle)\n"
+    });
+    let json = json!({
+        "ride_file": args.ride.display().to_string(),
+        "program_file": args.program.display().to_string(),
+        "governor": options.governor.is_some(),
+        "finished": out.finished,
+        "trip": out.trip.map(|c| format!("{c:?}")),
+        "peak_angle_deg": out.peak_angle_deg,
+        "certified_angle_deg": certified,
+        "peak_load_factor": out.peak_load_factor,
+        "restricted_s": out.restricted_s,
+        "steps": out.steps,
+        "events": out.events,
+        "csv_file": args.csv.as_ref().map(|p| p.display().to_string()),
+        "svg_file": args.svg.as_ref().map(|p| p.display().to_string()),
+        "passed": passed,
     });
     Ok(Report { text, json, passed })
 }

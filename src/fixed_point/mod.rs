@@ -30,10 +30,12 @@
 //! A component of a drive controller, not a certified safety function.
 
 mod limit;
+mod monitor;
 mod player;
 mod ramp;
 
 pub use limit::{following_error_exceeds, FixedCeiling, FixedSpeedLimit};
+pub use monitor::{FixedFindings, FixedMonitor};
 pub use player::{FixedRampPlayer, FixedSetpoint};
 pub use ramp::FixedRamp;
 

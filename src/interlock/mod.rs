@@ -66,6 +66,11 @@ const C_AHEAD: u32 = 7;
 const C_BEHIND: u32 = 8;
 const C_ANGLE_OVER: u32 = 9;
 
+/// A governor verdict the interlock can follow: no fault, a finite target.
+fn governor_ok(decision: &GovernorDecision) -> bool {
+    decision.status != GovernorStatus::Fault && decision.admitted_rad_s.is_finite()
+}
+
 /// What the states outside running need from the tick.
 struct Progress {
     dt_s: f32,
@@ -210,7 +215,6 @@ impl<const N: usize> Interlock<N> {
         let primary_ok = self.primary.trusted(c.stale_ticks);
         let measured = self.primary.value();
         let mut speed_ok = primary_ok;
-        let mut still = measured.abs() <= c.standstill_rad_s;
         let mut conditions = 0u16;
         if c.second_channel {
             self.secondary
@@ -222,7 +226,6 @@ impl<const N: usize> Interlock<N> {
             self.channel_ticks = count(self.channel_ticks, disagree);
             conditions |= u16::from(disagree) << C_DISAGREE;
             speed_ok = primary_ok && secondary_ok;
-            still = still && second.abs() <= c.standstill_rad_s;
         }
         let trusted = speed_ok && self.channel_ticks < c.debounce_ticks;
         conditions |= u16::from(!dt_ok) << C_OVERRUN;
@@ -243,6 +246,8 @@ impl<const N: usize> Interlock<N> {
         // Standstill counts only while the command has been run down to zero,
         // with a trusted sensor (and second channel) reading still.
         if at_zero {
+            let still = measured.abs() <= c.standstill_rad_s
+                && (!c.second_channel || self.secondary.value().abs() <= c.standstill_rad_s);
             self.standstill_ticks = count(self.standstill_ticks, trusted && still);
         } else {
             self.standstill_ticks = 0;
@@ -277,11 +282,8 @@ impl<const N: usize> Interlock<N> {
             self.refuse(request, measured);
         }
         let ceiling = self.params.ceiling.ceiling_rad_s();
-        let clamped = self.request_rad_s.clamp(self.lower_rad_s, ceiling);
-        let moving = matches!(
-            self.state,
-            InterlockState::Running | InterlockState::Limiting
-        );
+        let clamped = within(self.request_rad_s, self.lower_rad_s, ceiling);
+        let moving = self.state.follows_requests();
         // The governor is promised a checked tick period; after an overrun
         // (already tripped above) it is not asked.
         let decision = if dt_ok {
@@ -298,18 +300,12 @@ impl<const N: usize> Interlock<N> {
                 status: GovernorStatus::Free,
             }
         };
-        let admitted = decision.admitted_rad_s;
-        let governor_ok = decision.status != GovernorStatus::Fault && admitted.is_finite();
-        if moving && !governor_ok {
-            self.trip(TripCause::GovernorFault, measured);
-        }
-        let target = if self.state.follows_requests() {
-            let target = if admitted.to_bits() == clamped.to_bits() {
-                clamped
-            } else {
-                admitted.clamp(self.lower_rad_s, ceiling)
-            };
-            self.state = if clamped != self.request_rad_s
+        let target = if moving
+            && decision.admitted_rad_s.to_bits() == clamped.to_bits()
+            && decision.status != GovernorStatus::Fault
+        {
+            // The request admitted as clamped (no governor, or a free one).
+            self.state = if clamped.to_bits() != self.request_rad_s.to_bits()
                 || decision.status == GovernorStatus::Restricting
             {
                 InterlockState::Limiting
@@ -317,9 +313,9 @@ impl<const N: usize> Interlock<N> {
                 InterlockState::Running
             };
             // Adding zero turns −0 into +0, so a zero target compares equal.
-            target + 0.0
+            clamped + 0.0
         } else {
-            0.0
+            self.governed_target(&decision, clamped, moving, measured)
         };
         // An unchanged target costs one comparison, not a call; a ramp that
         // has reached an unchanged target has nothing to step.
@@ -342,13 +338,17 @@ impl<const N: usize> Interlock<N> {
                 commanded,
                 standstill,
                 reset_edge,
-                may_start: inputs.run_enable && trusted && angle_ok && dt_ok && governor_ok,
+                may_start: inputs.run_enable
+                    && trusted
+                    && angle_ok
+                    && dt_ok
+                    && governor_ok(&decision),
                 cause_gone: dt_ok
                     && trusted
                     && angle_ok
                     && conditions & (1 << C_OVERSPEED | 1 << C_ANGLE_OVER) == 0
                     && inputs.run_enable
-                    && governor_ok,
+                    && governor_ok(&decision),
             }),
         }
 
@@ -426,6 +426,36 @@ impl<const N: usize> Interlock<N> {
                 self.trip(TripCause::RunEnableDropped, measured);
             }
         }
+    }
+
+    /// The ramp's target when the governor changed the request, faulted, or
+    /// the interlock is not following requests: trips on a governor fault,
+    /// clamps the admitted target again, sets Running or Limiting.
+    #[inline(never)]
+    fn governed_target(
+        &mut self,
+        decision: &GovernorDecision,
+        clamped: f32,
+        moving: bool,
+        measured: f32,
+    ) -> f32 {
+        if moving && !governor_ok(decision) {
+            self.trip(TripCause::GovernorFault, measured);
+        }
+        if !self.state.follows_requests() {
+            return 0.0;
+        }
+        let ceiling = self.params.ceiling.ceiling_rad_s();
+        let target = within(decision.admitted_rad_s, self.lower_rad_s, ceiling);
+        self.state = if clamped.to_bits() != self.request_rad_s.to_bits()
+            || decision.status == GovernorStatus::Restricting
+            || target.to_bits() != clamped.to_bits()
+        {
+            InterlockState::Limiting
+        } else {
+            InterlockState::Running
+        };
+        target + 0.0
     }
 
     /// Records the first of a run of non-finite requests.
@@ -673,6 +703,23 @@ impl<const N: usize> Interlock<N> {
     #[must_use]
     pub const fn ticks(&self) -> u32 {
         self.tick
+    }
+}
+
+/// `x` limited to `[lo, hi]` in plain comparisons: `f32::clamp` asserts
+/// `lo <= hi`, a panic path the no-panic link check (firmware/src/bin/nopanic.rs)
+/// finds reachable because the optimiser cannot see that the ceiling is
+/// positive. The upper bound wins if the two ever crossed; NaN gives `lo`.
+#[inline]
+fn within(x: f32, lo: f32, hi: f32) -> f32 {
+    if x > hi {
+        hi
+    } else if x >= lo {
+        x
+    } else if lo <= hi {
+        lo
+    } else {
+        hi
     }
 }
 

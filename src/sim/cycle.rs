@@ -172,7 +172,8 @@ pub struct CycleOutcome {
     pub peak_angle_deg: f64,
     /// Largest load factor over the run.
     pub peak_load_factor: f64,
-    /// Time the governor held the request back, s.
+    /// Time the interlock was limiting the request (the governor or the
+    /// ceiling held it back), s.
     pub restricted_s: f64,
 }
 
@@ -342,8 +343,12 @@ pub fn run_cycle(
     let mut events = Vec::new();
     let mut last_percent = u32::MAX;
     // After the program's end the operator switches the ride off once it has
-    // stood still for twice the interlock's standstill confirmation.
+    // stood still for twice the interlock's standstill confirmation, and at
+    // least 10 s (two rest-pendulum periods of a 6 m link: the last step's
+    // residual swing is measured meanwhile).
     let mut still_ticks = 0_u32;
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    let settle_ticks = (2 * u32::from(c.standstill_ticks)).max((10.0 / c.tick_s) as u32);
     let trace = run_loop(
         &setup,
         |sensors, t, dt| {
@@ -354,7 +359,7 @@ pub fn run_cycle(
                 } else {
                     0
                 };
-                sensors.run_enable = still_ticks <= 2 * u32::from(c.standstill_ticks);
+                sensors.run_enable = still_ticks <= settle_ticks;
             }
             let sensors = &sensors;
             let index = runner.step_index();
@@ -573,4 +578,107 @@ pub fn render_cycle_svg(
             },
         ],
     )
+}
+
+/// The swing governor's parameters for a ride file, from its `[interlock]`
+/// table: the certified angle, the length band (the table's longest length
+/// and, as far below the nominal length, its mirror), the certified jerk and
+/// a 100 Hz estimator, the admitted target's rate at twice the certified
+/// acceleration (what a played table's request can need); speed uncertainty, rest hold, margin and sensor tolerance as
+/// in [`GovernorParams::demo`]. `None`
+/// without an `[interlock]` table.
+#[must_use]
+pub fn governor_for(ride: &RideFile) -> Option<GovernorParams> {
+    let c = *ride.interlock?.config();
+    let nominal = ride.geometry.length_m();
+    let band = (c.length_max_m - nominal).max(0.0);
+    Some(GovernorParams {
+        length_min_m: (nominal - band).max(0.5 * nominal),
+        length_max_m: c.length_max_m.max(nominal),
+        // The admitted target may move as fast as a table's request does: the
+        // table's slope plus the rate of its braking lead a·|a|/(2j), at
+        // most 2·a_max (hand calculation: d/dt[a|a|/(2j)] = |a|·ȧ/j ≤ a_max).
+        // A designed table is then followed as it is wherever it is certified.
+        target_rate_rad_s2: (2.0 * c.max_acceleration_rad_s2).min(10.0),
+        ..GovernorParams::demo(&ride.geometry, c.certified_angle_deg, c.max_jerk_rad_s3)
+    })
+}
+
+/// A requested-speed series run through the interlock (and the governor)
+/// against the drive model, and the seats on the shaft speed that resulted.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RequestRun {
+    /// The loop, tick by tick.
+    pub trace: Vec<LoopSample>,
+    /// The seat, every [`SEAT_SAMPLE_S`].
+    pub seat: Vec<Observation>,
+    /// Largest angle from vertical, °.
+    pub peak_angle_deg: f64,
+    /// The trip that ended the run early, if any.
+    pub trip: Option<TripCause>,
+}
+
+/// Runs `request` (rad/s as a function of time, s) for `duration_s` through
+/// the ride file's interlock — with the swing governor when `governor` is
+/// given — against its drive model, then simulates the seats.
+///
+/// # Errors
+/// [`CycleError::NoInterlock`], [`CycleError::NoDrive`],
+/// [`CycleError::Governor`], [`CycleError::Sim`].
+pub fn run_requests(
+    ride: &RideFile,
+    mut request: impl FnMut(f64) -> f64,
+    governor: Option<GovernorParams>,
+    duration_s: f64,
+) -> Result<RequestRun, CycleError> {
+    let params = ride.interlock.ok_or(CycleError::NoInterlock)?;
+    let drive = ride.drive.ok_or(CycleError::NoDrive)?;
+    let mut governor = match governor {
+        None => HostGovernor::None(PassThrough),
+        Some(g) => {
+            let mut swing = SwingGovernor::new(&ride.geometry, &g).map_err(CycleError::Governor)?;
+            swing.confirm_rest(0.0);
+            HostGovernor::Swing(Box::new(swing))
+        }
+    };
+    let mut interlock: Interlock<64> = Interlock::new(params);
+    let c = *params.config();
+    let setup = LoopSetup {
+        tick_s: f64::from(c.tick_s),
+        drive,
+        second_channel: c.second_channel,
+        fault: None,
+        reset_at_s: None,
+        max_time_s: duration_s,
+    };
+    let trace = run_loop(
+        &setup,
+        |sensors, t, dt| {
+            #[allow(clippy::cast_possible_truncation)]
+            let request_rad_s = request(t) as f32;
+            let inputs = crate::interlock::TickInputs {
+                request_rad_s,
+                ..*sensors
+            };
+            let output = interlock.tick_with(&inputs, dt, &mut governor);
+            ControllerTick {
+                request_rad_s,
+                output,
+                step: 0,
+                cycle: CycleState::Running,
+            }
+        },
+        |_| false,
+    );
+    let seat = seat_on_trace(&ride.seat, &trace, SEAT_SAMPLE_S).map_err(CycleError::Sim)?;
+    Ok(RequestRun {
+        peak_angle_deg: seat
+            .iter()
+            .map(|o| o.state.angle_from_vertical_rad())
+            .fold(0.0, f64::max)
+            .to_degrees(),
+        trip: interlock.cause(),
+        trace,
+        seat,
+    })
 }

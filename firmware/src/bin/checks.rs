@@ -6,8 +6,8 @@
 
 use cortex_m_rt::entry;
 use swingdrive_firmware::checks::{self, Tally};
-use swingdrive_firmware::ramp_checks;
 use swingdrive_firmware::{exit, say};
+use swingdrive_firmware::{interlock_checks, player_checks, ramp_checks};
 
 #[entry]
 fn main() -> ! {
@@ -17,6 +17,8 @@ fn main() -> ! {
     ramp_checks::ramp(&mut tally);
     #[cfg(feature = "fixed")]
     ramp_checks::fixed_ramp(&mut tally);
+    player_checks::player(&mut tally);
+    interlock_checks::interlock(&mut tally);
     sizes();
     say(format_args!(
         "{} of {} numeric results bit-identical to the host's f32",
@@ -29,44 +31,36 @@ fn main() -> ! {
     exit(u32::from(tally.failed > 0))
 }
 
+/// Prints `size_of T = N` for each type (bytes).
+macro_rules! sizes_of {
+    ($($t:ty),* $(,)?) => {
+        $(say(format_args!("size_of {} = {}", stringify!($t), core::mem::size_of::<$t>()));)*
+    };
+}
+
 /// Sizes of the state structs a firmware keeps, in bytes.
 fn sizes() {
-    use core::mem::size_of;
-    say(format_args!(
-        "size_of SpeedRamp = {}",
-        size_of::<swingdrive::SpeedRamp>()
-    ));
-    say(format_args!(
-        "size_of Plan = {}",
-        size_of::<swingdrive::Plan>()
-    ));
-    say(format_args!(
-        "size_of RampLimits = {}",
-        size_of::<swingdrive::RampLimits>()
-    ));
-    say(format_args!(
-        "size_of Setpoint = {}",
-        size_of::<swingdrive::Setpoint>()
-    ));
+    use swingdrive::{Interlock, Plan, RampLimits, SafetyParams, Setpoint, SpeedRamp};
+    sizes_of!(
+        SpeedRamp,
+        Plan,
+        RampLimits,
+        Setpoint,
+        Interlock,
+        SafetyParams
+    );
     #[cfg(feature = "fixed")]
     {
-        use swingdrive::fixed_point as fp;
-        say(format_args!(
-            "size_of FixedRamp = {}",
-            size_of::<fp::FixedRamp>()
-        ));
-        say(format_args!(
-            "size_of FixedRampPlayer = {}",
-            size_of::<fp::FixedRampPlayer>()
-        ));
-        say(format_args!(
-            "size_of FixedSetpoint = {}",
-            size_of::<fp::FixedSetpoint>()
-        ));
-        say(format_args!(
-            "size_of FixedCeiling = {}",
-            size_of::<fp::FixedCeiling>()
-        ));
+        use swingdrive::fixed_point::{
+            FixedCeiling, FixedMonitor, FixedRamp, FixedRampPlayer, FixedSetpoint,
+        };
+        sizes_of!(
+            FixedRamp,
+            FixedRampPlayer,
+            FixedSetpoint,
+            FixedCeiling,
+            FixedMonitor
+        );
     }
 }
 

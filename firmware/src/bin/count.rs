@@ -69,6 +69,7 @@ fn main() -> ! {
     }
     ramp_counts();
     swing_governor();
+    interlock_counts();
     #[cfg(feature = "fixed")]
     fixed_counts();
     exit(0)
@@ -230,21 +231,93 @@ fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
     exit(101)
 }
 
+/// Interlock ticks on the demo ride of the fault scenarios (both speed
+/// channels and the angle sensor fitted), with an ideal drive.
+fn interlock_counts() {
+    use swingdrive::{Interlock, SafetyParams, Sample, TickInputs};
+    use swingdrive_firmware::interlock_scenario::scenario_config;
+    let Ok(params) = SafetyParams::new(scenario_config(black_box(false))) else {
+        exit(2)
+    };
+    let mut il: Interlock = Interlock::new(params);
+    let mut seq: u8 = 0;
+    let mut measured = 0.0_f32;
+    let mut inputs = |request: f32, v: f32| {
+        seq = seq.wrapping_add(1);
+        TickInputs {
+            request_rad_s: black_box(request),
+            speed: Sample::new(black_box(v), seq),
+            second_speed: Sample::new(black_box(v), seq),
+            angle: Sample::new(black_box(0.3), seq),
+            run_enable: black_box(true),
+            reset: black_box(false),
+        }
+    };
+    let dt = black_box(1.0e-3_f32);
+    for _ in 0..300 {
+        let i = inputs(0.8, measured);
+        measured = il.tick(&i, dt).command.speed.rad_per_s();
+    }
+    let i = inputs(0.8, measured);
+    // 20: Interlock::tick, running, request unchanged (ramp step inside; typical)
+    measure(20, || il.tick(&i, dt));
+    let i = inputs(0.5, measured);
+    // 21: Interlock::tick with a new request (clamp, re-plan, step)
+    measure(21, || il.tick(&i, dt));
+    for _ in 0..3 {
+        let i = inputs(0.5, 5.0);
+        let _ = il.tick(&i, dt);
+    }
+    let i = inputs(0.5, 5.0);
+    // 22: Interlock::tick that trips (overspeed: event record, stop plan, step)
+    measure(22, || il.tick(&i, dt));
+    let i = inputs(0.5, 0.0);
+    // 23: Interlock::tick during the controlled stop
+    measure(23, || il.tick(&i, dt));
+
+    // Reverse allowed: accelerating forward, the request flips to reverse.
+    let Ok(params) = SafetyParams::new(scenario_config(black_box(true))) else {
+        exit(2)
+    };
+    let mut il: Interlock = Interlock::new(params);
+    let mut measured = 0.0_f32;
+    for k in 0..400_u32 {
+        let i = TickInputs {
+            request_rad_s: 0.9,
+            speed: Sample::new(measured, k as u8),
+            second_speed: Sample::new(measured, k as u8),
+            angle: Sample::new(0.3, k as u8),
+            run_enable: true,
+            reset: false,
+        };
+        measured = il.tick(&i, dt).command.speed.rad_per_s();
+    }
+    let i = TickInputs {
+        request_rad_s: black_box(-0.9),
+        speed: Sample::new(black_box(measured), 144),
+        second_speed: Sample::new(black_box(measured), 144),
+        angle: Sample::new(black_box(0.3), 144),
+        run_enable: black_box(true),
+        reset: black_box(false),
+    };
+    // 24: Interlock::tick with a reversing request while accelerating (re-plan through zero speed)
+    measure(24, || il.tick(&i, dt));
+}
+
 /// The fixed-point tick: ramp step, ceiling clamp of the request and the
 /// interlock's comparisons (overspeed, following error), typical and worst.
 #[cfg(feature = "fixed")]
 fn fixed_counts() {
-    use swingdrive::fixed_point::{
-        following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
-    };
+    use swingdrive::fixed_point::{FixedMonitor, FixedRamp, Speed};
     let Ok(limits) = RampLimits::new(black_box(0.5), black_box(1.0), black_box(1.0)) else {
         exit(2)
     };
-    let (Ok(ceiling), Ok(over), Ok(follow)) = (
-        FixedCeiling::new(black_box(9.0), Reverse::Allowed),
-        FixedSpeedLimit::new("overspeed_rad_s", black_box(9.5)),
-        FixedSpeedLimit::new("following_tolerance_rad_s", black_box(0.3)),
+    let Ok(params) = swingdrive::SafetyParams::new(
+        swingdrive_firmware::interlock_scenario::scenario_config(black_box(true)),
     ) else {
+        exit(2)
+    };
+    let Ok(monitor) = FixedMonitor::from_params(&params) else {
         exit(2)
     };
     let ramp_at = |target: f32, ticks: u32| {
@@ -257,17 +330,21 @@ fn fixed_counts() {
         }
         ramp
     };
-    // One fixed-point tick with the target unchanged: clamp the request,
-    // step, compare the measured speed with the ceiling and the command.
+    // One fixed-point tick with the target unchanged: clamp the request to
+    // the interlock's ceiling, step, run the interlock's comparisons
+    // (thresholds from its SafetyParams) on both speed channels.
     let tick = |ramp: &mut FixedRamp| {
-        let (request, limited) = ceiling.clamp(Speed::from_bits(black_box(8 << 16)));
+        let (request, limited) = monitor
+            .ceiling()
+            .clamp(Speed::from_bits(black_box(8 << 16)));
         let s = ramp.step();
         let measured = Speed::from_bits(black_box(s.speed.to_bits() + 7));
-        let trip = over.exceeded_by(measured) || following_error_exceeds(measured, s.speed, follow);
-        (request, limited, s, trip)
+        let second = Speed::from_bits(black_box(s.speed.to_bits() - 5));
+        let findings = monitor.check(measured, Some(second), s.speed);
+        (request, limited, s, findings)
     };
     let mut ramp = ramp_at(8.0, 200);
-    // 30: fixed-point tick (clamp + step + comparisons), first half of a segment
+    // 30: fixed-point tick (ceiling clamp + ramp step + interlock comparisons), first half of a segment
     measure(30, || tick(&mut ramp));
     let mut ramp = ramp_at(8.0, 400);
     // 31: fixed-point tick, second half of a segment (evaluated from its end)

@@ -188,6 +188,16 @@ fn fixed_point() -> f32 {
         }
         acc += s.acceleration.to_num::<f32>();
     }
+    if let Ok(params) = swingdrive::SafetyParams::new(
+        swingdrive_firmware::interlock_scenario::scenario_config(black_box(false)),
+    ) {
+        if let Ok(monitor) = swingdrive::fixed_point::FixedMonitor::from_params(&params) {
+            let s = ramp.step();
+            let f = monitor.check(s.speed, Some(s.speed), s.speed);
+            acc += f32::from(u8::from(f.overspeed || f.still));
+            acc += monitor.ceiling().clamp(s.speed).0.to_num::<f32>();
+        }
+    }
     acc + ramp.setpoint().speed.to_num::<f32>()
 }
 
@@ -197,12 +207,41 @@ fn fixed_point() -> f32 {
     0.0
 }
 
+/// Exercises the interlock: parameter check, construction, ticks through
+/// faults, parameter verification.
+fn interlock() -> f32 {
+    use swingdrive::{Interlock, SafetyParams, Sample, TickInputs};
+    use swingdrive_firmware::interlock_scenario::scenario_config;
+    let mut acc = 0.0;
+    let Ok(params) = SafetyParams::new(scenario_config(black_box(true))) else {
+        return acc;
+    };
+    let mut il: Interlock = Interlock::new(params);
+    for k in 0..black_box(200_u32) {
+        let out = il.tick(
+            &TickInputs {
+                request_rad_s: black_box(1.0),
+                speed: Sample::new(black_box(0.5), k as u8),
+                second_speed: Sample::new(black_box(0.5), k as u8),
+                angle: Sample::new(black_box(0.2), k as u8),
+                run_enable: black_box(true),
+                reset: black_box(false),
+            },
+            black_box(1.0e-3),
+        );
+        acc += out.command.speed.rad_per_s();
+    }
+    acc += f32::from(u8::from(il.verify_parameters()));
+    acc + il.ramp_remaining_s()
+}
+
 #[entry]
 fn main() -> ! {
     let total = black_box(steady_state())
         + black_box(ramp())
         + black_box(swing_governor())
-        + black_box(fixed_point());
+        + black_box(fixed_point())
+        + black_box(interlock());
     say(format_args!("no-panic image runs: {}", total.is_finite()));
     exit(0)
 }
