@@ -444,11 +444,14 @@ fn through_interlock(
         ));
     };
     let config = *params.config();
-    let governor_params = GovernorParams::demo(
-        &ride.geometry,
-        config.certified_angle_deg,
-        params.ramp_limits().max_jerk_rad_s3(),
-    );
+    // The same governor parameters as `swingdrive cycle` (from [interlock]).
+    let governor_params = swingdrive::sim::cycle::governor_for(ride).unwrap_or_else(|| {
+        GovernorParams::demo(
+            &ride.geometry,
+            config.certified_angle_deg,
+            params.ramp_limits().max_jerk_rad_s3(),
+        )
+    });
     let mut governor = SwingGovernor::new(&ride.geometry, &governor_params)
         .map_err(|e| Failure::Input(format!("swing governor: {e}")))?;
     governor.confirm_rest(0.0);
@@ -632,7 +635,11 @@ fn envelope_command(args: &EnvelopeArgs) -> Result<Report, Failure> {
             ))
         }
     };
-    let params = GovernorParams::demo(&ride.geometry, certified, limits.max_jerk_rad_s3());
+    // With [interlock], the governor of `swingdrive cycle`; otherwise the demo parameters.
+    let from_file = swingdrive::sim::cycle::governor_for(&ride);
+    let params = from_file.unwrap_or_else(|| {
+        GovernorParams::demo(&ride.geometry, certified, limits.max_jerk_rad_s3())
+    });
     let rig = Rig {
         geometry: ride.geometry,
         limits,
@@ -675,7 +682,11 @@ fn envelope_command(args: &EnvelopeArgs) -> Result<Report, Failure> {
         "governed_sideways_deg": r.governed.sideways_deg,
         "governed_exceedances": r.governed_exceedances,
         "governed_faults": r.governed_faults,
-        "note": "governor parameters: GovernorParams::demo (length band +-2 %, speed uncertainty 0.005 rad/s)",
+        "note": if from_file.is_some() {
+            "governor parameters: swingdrive::sim::cycle::governor_for (from [interlock]: certified angle, length band, jerk; target rate 2 x the certified acceleration)"
+        } else {
+            "governor parameters: GovernorParams::demo (length band +-2 %, speed uncertainty 0.005 rad/s)"
+        },
     });
     Ok(Report { text, json, passed })
 }

@@ -583,9 +583,8 @@ pub fn render_cycle_svg(
 /// The swing governor's parameters for a ride file, from its `[interlock]`
 /// table: the certified angle, the length band (the table's longest length
 /// and, as far below the nominal length, its mirror), the certified jerk and
-/// a 100 Hz estimator, the admitted target's rate at twice the certified
-/// acceleration (what a played table's request can need); speed uncertainty, rest hold, margin and sensor tolerance as
-/// in [`GovernorParams::demo`]. `None`
+/// a 100 Hz estimator; the admitted target's rate, speed uncertainty, rest
+/// hold, margin and sensor tolerance as in [`GovernorParams::demo`]. `None`
 /// without an `[interlock]` table.
 #[must_use]
 pub fn governor_for(ride: &RideFile) -> Option<GovernorParams> {
@@ -595,11 +594,11 @@ pub fn governor_for(ride: &RideFile) -> Option<GovernorParams> {
     Some(GovernorParams {
         length_min_m: (nominal - band).max(0.5 * nominal),
         length_max_m: c.length_max_m.max(nominal),
-        // The admitted target may move as fast as a table's request does: the
-        // table's slope plus the rate of its braking lead a·|a|/(2j), at
-        // most 2·a_max (hand calculation: d/dt[a|a|/(2j)] = |a|·ȧ/j ≤ a_max).
-        // A designed table is then followed as it is wherever it is certified.
-        target_rate_rad_s2: (2.0 * c.max_acceleration_rad_s2).min(10.0),
+        // The admitted target's rate stays at the demo value (0.02 rad/s²):
+        // the adversarial search on the demo ride found governed runs past
+        // the certified angle at 0.1 and 0.2 rad/s² (docs/dynamic_protection.md),
+        // so a faster rate is not offered even though played tables then get
+        // slowed down.
         ..GovernorParams::demo(&ride.geometry, c.certified_angle_deg, c.max_jerk_rad_s3)
     })
 }
