@@ -177,14 +177,7 @@ impl ProgramFile {
     /// # Errors
     /// [`RideFileError`] naming the file, line and key.
     pub fn from_path(path: &Path) -> Result<Self, RideFileError> {
-        let name = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| {
-            Locator {
-                source: &name,
-                text: "",
-            }
-            .error(None, None, format!("cannot read: {e}"))
-        })?;
+        let (text, name) = Locator::read(path)?;
         Self::from_toml_str(&text, &name)
     }
 
@@ -197,13 +190,7 @@ impl ProgramFile {
             source: source_name,
             text,
         };
-        let raw: RawProgram = toml::from_str(text).map_err(|e| {
-            at.error(
-                e.span().map(|s| s.start),
-                None,
-                e.message().trim_end().to_owned(),
-            )
-        })?;
+        let raw: RawProgram = at.parse()?;
         if raw.step.is_empty() {
             return Err(at.error(None, Some("step"), "the program has no step".to_owned()));
         }

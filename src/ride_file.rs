@@ -273,6 +273,31 @@ pub(crate) struct Locator<'a> {
 }
 
 impl Locator<'_> {
+    /// Reads a whole file, or an error naming it.
+    pub(crate) fn read(path: &Path) -> Result<(String, String), RideFileError> {
+        let name = path.display().to_string();
+        match std::fs::read_to_string(path) {
+            Ok(text) => Ok((text, name)),
+            Err(e) => Err(RideFileError {
+                source: name,
+                line: None,
+                field: None,
+                message: format!("cannot read: {e}"),
+            }),
+        }
+    }
+
+    /// Parses the TOML text into `T`, a syntax or schema error at its line.
+    pub(crate) fn parse<T: serde::de::DeserializeOwned>(&self) -> Result<T, RideFileError> {
+        toml::from_str(self.text).map_err(|e| {
+            self.error(
+                e.span().map(|s| s.start),
+                None,
+                e.message().trim_end().to_owned(),
+            )
+        })
+    }
+
     pub(crate) fn line_of(&self, offset: usize) -> usize {
         let end = offset.min(self.text.len());
         self.text
@@ -470,13 +495,7 @@ impl RideFile {
     /// # Errors
     /// [`RideFileError`] naming the file, line and key.
     pub fn from_path(path: &Path) -> Result<Self, RideFileError> {
-        let name = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| RideFileError {
-            source: name.clone(),
-            line: None,
-            field: None,
-            message: format!("cannot read: {e}"),
-        })?;
+        let (text, name) = Locator::read(path)?;
         Self::from_toml_str(&text, &name)
     }
 
@@ -490,13 +509,7 @@ impl RideFile {
             source: source_name,
             text,
         };
-        let raw: RawRideFile = toml::from_str(text).map_err(|e| {
-            at.error(
-                e.span().map(|s| s.start),
-                None,
-                e.message().trim_end().to_owned(),
-            )
-        })?;
+        let raw: RawRideFile = at.parse()?;
 
         // Each key is checked on its own, through the constructor that owns its
         // range, so that a refusal can point at the key's line.
