@@ -35,11 +35,16 @@ impl RideGeometry {
     pub const MAX_HUB_OFFSET_M: f32 = 100.0;
     /// Largest accepted effective length, m.
     pub const MAX_LENGTH_M: f32 = 100.0;
+    /// Shortest accepted effective length, m (1 cm: far below any seat, far
+    /// above the subnormal lengths that would overflow the steady-state
+    /// formulas in f32).
+    pub const MIN_LENGTH_M: f32 = 0.01;
 
     /// Checks and builds a geometry.
     ///
     /// * `hub_offset_m`: shaft axis to hanger pivot, m, in [0, 100].
-    /// * `length_m`: pivot to the centre of mass of seat plus rider, m, in (0, 100].
+    /// * `length_m`: pivot to the centre of mass of seat plus rider, m, in
+    ///   [0.01, 100] (zero or negative: [`ParamError::NotPositive`]).
     ///
     /// # Errors
     /// [`ParamError`] naming `hub_offset_m` or `length_m`.
@@ -59,7 +64,7 @@ impl RideGeometry {
     ) -> Result<Self, ParamError> {
         Ok(Self {
             hub_offset_m: check_range("hub_offset_m", hub_offset_m, 0.0, Self::MAX_HUB_OFFSET_M)?,
-            length_m: check_positive("length_m", length_m, Self::MAX_LENGTH_M)?,
+            length_m: check_length(length_m)?,
             suspension,
             gravity,
         })
@@ -96,6 +101,16 @@ impl RideGeometry {
     pub fn with_length(&self, length_m: f32) -> Result<Self, ParamError> {
         Self::new(self.hub_offset_m, length_m, self.suspension, self.gravity)
     }
+}
+
+/// Checks the effective length: positive, and in [`RideGeometry::MIN_LENGTH_M`,
+/// `RideGeometry::MAX_LENGTH_M`].
+fn check_length(length_m: f32) -> Result<f32, ParamError> {
+    let l = check_positive("length_m", length_m, RideGeometry::MAX_LENGTH_M)?;
+    if l < RideGeometry::MIN_LENGTH_M {
+        return Err(ParamError::OutOfRange("length_m"));
+    }
+    Ok(l)
 }
 
 #[cfg(test)]

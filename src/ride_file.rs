@@ -515,7 +515,7 @@ impl RideFile {
         let hub_offset_m = at.value("geometry", &g.hub_offset_m, "0 to 100 m", |x| {
             SeatDynamics::new(x, 1.0, suspension, gravity_mps2).map(|_| x)
         })?;
-        let length_m = at.value("geometry", &g.length_m, "above 0, up to 100 m", |x| {
+        let length_m = at.value("geometry", &g.length_m, "0.01 to 100 m", |x| {
             SeatDynamics::new(0.0, x, suspension, gravity_mps2).map(|_| x)
         })?;
         let mut seat = SeatDynamics::new(hub_offset_m, length_m, suspension, gravity_mps2)
@@ -626,7 +626,7 @@ mod tests {
             .unwrap_err();
         assert_eq!(
             e.to_string(),
-            "r.toml: line 3, field `geometry.length_m`: must be greater than zero (allowed: above 0, up to 100 m)"
+            "r.toml: line 3, field `geometry.length_m`: must be greater than zero (allowed: 0.01 to 100 m)"
         );
         let e = RideFile::from_toml_str(
             &GOOD.replace("max_jerk_rad_s3 = 0.05", "max_jerk_rad_s3 = 500.0"),

@@ -264,3 +264,105 @@ fn the_drive_table_smooths_a_step_and_a_permit_drop_coasts() {
     assert_eq!(dropped["final_speed_rad_s"], 0.0);
     assert_eq!(dropped["residual_window_start_s"], 60.0);
 }
+
+#[test]
+fn envelope_reports_the_bare_and_the_governed_peak() {
+    // A small search on the demo ride at a 45° certified angle: the bare worst case goes
+    // past the certified angle (a jerk-limited move straight to the ceiling alone swings
+    // past it on this ride), the governed one stays inside, and exit status 0 says so.
+    let out = run(&[
+        "envelope",
+        &example("demo_chain_ride.toml"),
+        "--certified-deg",
+        "45",
+        "--random",
+        "1",
+        "--restarts",
+        "0",
+        "--json",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v["peak_angle_deg"].as_f64().unwrap() > 45.0);
+    assert!(v["governed_peak_angle_deg"].as_f64().unwrap() < 45.0);
+    assert_eq!(v["governed_exceedances"].as_u64(), Some(0));
+    // Without an [interlock] table and without --certified-deg: a clear input error.
+    let out = run(&["envelope", &example("demo_chain_ride.toml")]);
+    assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn replay_through_the_interlock_reports_the_governed_peak() {
+    // Demo data: the demo ride with a demo [interlock] table (certified 45°, 10 ms ticks).
+    // The profile steps straight to 1.15 rad/s: applied directly the seats swing far past
+    // 45° (75° here); as a request through ceiling, swing governor and ramp they stay inside.
+    let ride = scratch(
+        "replay_through_interlock",
+        "ride.toml",
+        r#"
+[geometry]
+hub_offset_m = 3.4        # shaft axis to the chain's upper pivot
+length_m = 5.8            # pivot to the centre of mass of seat + rider
+suspension = "chain"      # or "rod" (hinged in the radial plane)
+gravity_mps2 = 9.80665    # optional; standard gravity if absent
+
+[limits]
+max_accel_rad_s2 = 0.10
+max_decel_rad_s2 = 0.12
+max_jerk_rad_s3 = 0.05
+
+[interlock]
+certified_angle_deg = 45.0
+max_load_factor = 1.3            # optional
+mechanical_max_rad_s = 2.0
+hub_offset_max_m = 3.5           # optional; default [geometry] hub_offset_m
+length_max_m = 6.2               # optional; default [geometry] length_m + 5 %
+gravity_min_mps2 = 9.78          # optional; default [geometry] gravity_mps2
+speed_margin_rad_s = 0.02
+max_acceleration_rad_s2 = 0.10
+max_deceleration_rad_s2 = 0.12
+max_jerk_rad_s3 = 0.05
+overspeed_tolerance_rad_s = 0.05
+following_tolerance_rad_s = 0.08
+channel_tolerance_rad_s = 0.04
+sensor_max_rad_s = 5.0
+standstill_rad_s = 0.01
+tick_s = 0.01
+overrun_tick_s = 0.02
+stop_time_margin_s = 2.0
+brake_delay_s = 30.0
+debounce_ticks = 5
+stale_ticks = 10
+standstill_ticks = 50
+reverse_permitted = false
+second_channel = true
+angle_sensor = false
+"#,
+    );
+    let out = run(&[
+        "replay",
+        ride.to_str().unwrap(),
+        &example("step_start.csv"),
+        "--settle",
+        "30",
+        "--through-interlock",
+        "--json",
+    ]);
+    let v = json(&out);
+    assert!(v["peak_angle_deg"].as_f64().unwrap() > 60.0, "{v}");
+    let governed = v["governed_peak_angle_deg"].as_f64().unwrap();
+    assert!(governed < 45.0 && governed > 30.0, "{v}");
+    assert_eq!(v["governed_tripped"].as_bool(), Some(false));
+    // Without an [interlock] table the option is refused with a clear message.
+    let out = run(&[
+        "replay",
+        &example("demo_chain_ride.toml"),
+        &example("step_start.csv"),
+        "--through-interlock",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+}

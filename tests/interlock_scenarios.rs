@@ -642,3 +642,28 @@ fn a_ride_still_creeping_when_the_stop_time_is_up_loses_its_permit() {
     assert!(r.has_event(EventKind::Trip(TripCause::NotFollowingStop)));
     assert!(r.has_event(EventKind::PermitRemovedAtOnce));
 }
+
+#[test]
+fn the_brake_applies_after_the_brake_delay_when_standstill_cannot_be_confirmed() {
+    let c = config();
+    let mut r = Rig::running_at(c, 0.6);
+    // A category-0 trip: the ride coasts, the sensor keeps reading 0.5 rad/s.
+    let i = r.inputs();
+    r.out = r.il.tick(&i, 0.05);
+    assert!(!r.out.run_permit);
+    let mut ticks = 0u32;
+    while !r.out.brake {
+        ticks += 1;
+        assert!(ticks < 5_000);
+        let mut i = r.inputs();
+        i.speed.value = 0.5;
+        i.second_speed.value = 0.5;
+        r.tick_raw(&i);
+    }
+    // brake_delay_s 20 s at 10 ms ticks: 2000 ticks (hand calculation, common practice).
+    let expected = c.brake_delay_s / DT;
+    assert!(
+        (ticks as f32 - expected).abs() <= 2.0,
+        "{ticks} vs {expected}"
+    );
+}

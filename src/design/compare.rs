@@ -23,6 +23,9 @@ pub struct BandCheck {
     pub residual_swing_deg: f64,
     /// Largest angle from vertical, degrees.
     pub peak_angle_deg: f64,
+    /// Peak angle minus this member's steady angle at the profile's largest
+    /// speed, degrees: how far the seats swing past where that speed holds them.
+    pub overshoot_deg: f64,
 }
 
 /// Most samples of a table or comparison profile.
@@ -138,6 +141,7 @@ pub fn check_band(
                 damping_per_s: seat.damping_per_s(),
                 residual_swing_deg: out.summary.residual_swing_deg,
                 peak_angle_deg: out.summary.peak_angle_deg,
+                overshoot_deg: out.summary.overshoot_deg,
             })
         })
         .collect()
@@ -149,4 +153,14 @@ pub fn worst(checks: &[BandCheck]) -> (f64, f64) {
     checks.iter().fold((0.0, 0.0), |(r, p), c| {
         (r.max(c.residual_swing_deg), p.max(c.peak_angle_deg))
     })
+}
+
+/// Worst overshoot over `checks` (peak angle past the member's own steady
+/// angle at the profile's top speed), degrees.
+#[must_use]
+pub fn worst_overshoot(checks: &[BandCheck]) -> f64 {
+    checks
+        .iter()
+        .map(|c| c.overshoot_deg)
+        .fold(f64::NEG_INFINITY, f64::max)
 }

@@ -157,8 +157,12 @@ pub struct Design {
     pub checks: Vec<compare::BandCheck>,
     /// Worst residual swing of the check, degrees.
     pub residual_swing_deg: f64,
-    /// Worst peak angle from vertical of the check, degrees.
+    /// Worst peak angle from vertical of the check, degrees (the longest
+    /// length of the band has the largest steady angle at a given speed).
     pub peak_angle_deg: f64,
+    /// Worst overshoot of the check: peak angle past each member's own steady
+    /// angle at the profile's top speed, degrees.
+    pub overshoot_deg: f64,
     /// Steady angle at the larger of start and end speed (nominal), degrees.
     pub steady_angle_deg: f64,
     /// The residual target, degrees.
@@ -712,6 +716,7 @@ impl Problem {
             .iter()
             .map(|c| c.residual_swing_deg)
             .fold(0.0, f64::max);
+        let overshoot_deg = compare::worst_overshoot(&checks);
         let peak = checks.iter().map(|c| c.peak_angle_deg).fold(0.0, f64::max);
         let nominal = self
             .check_members
@@ -732,6 +737,7 @@ impl Problem {
             checks,
             residual_swing_deg: residual,
             peak_angle_deg: peak,
+            overshoot_deg,
             steady_angle_deg: steady,
             residual_target_deg: self.options.residual_target_deg,
             meets_target: limits_ok && residual <= self.options.residual_target_deg,

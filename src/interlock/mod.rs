@@ -38,7 +38,9 @@ pub use params::{BlockError, SafetyConfig, SafetyParams};
 pub use state::{InterlockState, TripCause};
 
 use crate::ramp::{Reverse, Setpoint, SpeedRamp};
-use crate::request_governor::{GovernorInput, GovernorStatus, PassThrough, RequestGovernor};
+use crate::request_governor::{
+    GovernorDecision, GovernorInput, GovernorStatus, PassThrough, RequestGovernor,
+};
 use crate::units::AngularSpeed;
 use sensor::{count, SensorTrack};
 
@@ -51,6 +53,35 @@ const MAX_ANGLE_SAMPLE_RAD: f32 = core::f32::consts::FRAC_PI_2;
 
 /// Bit in `Interlock::seen` for a refused reset (cause bits are 1..=14).
 const RESET_REFUSED_BIT: u16 = 1 << 15;
+
+// Bits of one tick's conditions (see `Interlock::monitor`).
+const C_OVERRUN: u32 = 0;
+const C_SPEED_STALE: u32 = 1;
+const C_ANGLE_STALE: u32 = 2;
+const C_RUN_ENABLE_OFF: u32 = 3;
+const C_OVERSPEED: u32 = 4;
+const C_FOLLOWING: u32 = 5;
+const C_DISAGREE: u32 = 6;
+const C_AHEAD: u32 = 7;
+const C_BEHIND: u32 = 8;
+const C_ANGLE_OVER: u32 = 9;
+
+/// A governor verdict the interlock can follow: no fault, a finite target.
+fn governor_ok(decision: &GovernorDecision) -> bool {
+    decision.status != GovernorStatus::Fault && decision.admitted_rad_s.is_finite()
+}
+
+/// What the states outside running need from the tick.
+struct Progress {
+    dt_s: f32,
+    dt_ok: bool,
+    measured: f32,
+    commanded: f32,
+    standstill: bool,
+    reset_edge: bool,
+    may_start: bool,
+    cause_gone: bool,
+}
 
 /// The speed interlock, with a record of its last `N` events.
 #[derive(Debug, Clone)]
@@ -85,10 +116,14 @@ pub struct Interlock<const N: usize = DEFAULT_EVENT_CAPACITY> {
     reset_before: bool,
     /// A run of non-finite requests is under way (recorded at its start).
     refusing: bool,
+    /// A debounce counter is running: `monitor` must run even on a quiet tick.
+    pending: bool,
     tick: u32,
     // Derived once.
     lower_rad_s: f32,
     overspeed_rad_s: f32,
+    /// Bit pattern of `overrun_tick_s` (see the tick-period check).
+    overrun_bits: u32,
     certified_angle_rad: f32,
     events: EventLog<N>,
 }
@@ -122,12 +157,14 @@ impl<const N: usize> Interlock<N> {
             permit_off_s: 0.0,
             reset_before: false,
             refusing: false,
+            pending: false,
             tick: 0,
             lower_rad_s: match c.reverse {
                 Reverse::Allowed => -ceiling,
                 Reverse::Forbidden => 0.0,
             },
             overspeed_rad_s: ceiling + c.overspeed_tolerance_rad_s,
+            overrun_bits: c.overrun_tick_s.to_bits(),
             certified_angle_rad: c.certified_angle_deg * (core::f32::consts::PI / 180.0),
             events: EventLog::new(),
             params,
@@ -162,9 +199,14 @@ impl<const N: usize> Interlock<N> {
         dt_s: f32,
         governor: &mut G,
     ) -> TickOutput {
-        let c = *self.params.config();
+        // The healthy path below only gathers this tick's conditions; the
+        // debounce counters, trips and events live in `monitor`, entered
+        // when a condition is present or a counter is still running.
+        let c = &self.params.config;
         self.tick = self.tick.wrapping_add(1);
-        let dt_ok = dt_s > 0.0 && dt_s <= c.overrun_tick_s;
+        // (0, overrun] as one unsigned comparison of the bit patterns: +0,
+        // negatives (sign bit), NaN and ∞ all fall outside.
+        let dt_ok = dt_s.to_bits().wrapping_sub(1) < self.overrun_bits;
         let reset_edge = inputs.reset && !self.reset_before;
         self.reset_before = inputs.reset;
 
@@ -173,7 +215,7 @@ impl<const N: usize> Interlock<N> {
         let primary_ok = self.primary.trusted(c.stale_ticks);
         let measured = self.primary.value();
         let mut speed_ok = primary_ok;
-        let mut still = measured.abs() <= c.standstill_rad_s;
+        let mut conditions = 0u16;
         if c.second_channel {
             self.secondary
                 .update(inputs.second_speed, c.sensor_max_rad_s);
@@ -182,61 +224,183 @@ impl<const N: usize> Interlock<N> {
             let disagree =
                 primary_ok && secondary_ok && (measured - second).abs() > c.channel_tolerance_rad_s;
             self.channel_ticks = count(self.channel_ticks, disagree);
+            conditions |= u16::from(disagree) << C_DISAGREE;
             speed_ok = primary_ok && secondary_ok;
-            still = still && second.abs() <= c.standstill_rad_s;
         }
-        let disagreement = self.channel_ticks >= c.debounce_ticks;
-        let trusted = speed_ok && !disagreement;
-
-        let over = trusted && measured.abs() > self.overspeed_rad_s;
-        self.overspeed_ticks = count(self.overspeed_ticks, over);
+        let trusted = speed_ok && self.channel_ticks < c.debounce_ticks;
+        conditions |= u16::from(!dt_ok) << C_OVERRUN;
+        conditions |= u16::from(!speed_ok) << C_SPEED_STALE;
+        conditions |= u16::from(trusted && measured.abs() > self.overspeed_rad_s) << C_OVERSPEED;
 
         let mut angle_ok = true;
-        let mut angle_over = false;
         if c.angle_sensor {
             self.angle.update(inputs.angle, MAX_ANGLE_SAMPLE_RAD);
             angle_ok = self.angle.trusted(c.stale_ticks);
-            angle_over = angle_ok && self.angle.value().abs() > self.certified_angle_rad;
-            self.angle_ticks = count(self.angle_ticks, angle_over);
+            let over = angle_ok && self.angle.value().abs() > self.certified_angle_rad;
+            conditions |= u16::from(!angle_ok) << C_ANGLE_STALE;
+            conditions |= u16::from(over) << C_ANGLE_OVER;
         }
 
         let commanded = self.command.speed.rad_per_s();
         let at_zero = commanded == 0.0 && self.command.target_reached();
         // Standstill counts only while the command has been run down to zero,
         // with a trusted sensor (and second channel) reading still.
-        self.standstill_ticks = count(self.standstill_ticks, at_zero && trusted && still);
+        if at_zero {
+            let still = measured.abs() <= c.standstill_rad_s
+                && (!c.second_channel || self.secondary.value().abs() <= c.standstill_rad_s);
+            self.standstill_ticks = count(self.standstill_ticks, trusted && still);
+        } else {
+            self.standstill_ticks = 0;
+        }
         let standstill = self.standstill_ticks >= c.standstill_ticks;
 
-        let moving_state = matches!(
-            self.state,
-            InterlockState::Running | InterlockState::Limiting
-        );
-        let stopping = matches!(
-            self.state,
-            InterlockState::Stopping | InterlockState::StoppingTimed
-        );
-        let error = measured - commanded;
-        let following = moving_state && trusted && error.abs() > c.following_tolerance_rad_s;
-        self.following_ticks = count(self.following_ticks, following);
-        let ahead =
-            stopping && trusted && measured.abs() > commanded.abs() + c.following_tolerance_rad_s;
-        self.stop_ahead_ticks = count(self.stop_ahead_ticks, ahead);
-        let behind =
-            stopping && trusted && measured.abs() + c.following_tolerance_rad_s < commanded.abs();
-        self.stop_behind_ticks = count(self.stop_behind_ticks, behind);
+        let tolerance = c.following_tolerance_rad_s;
+        match self.state {
+            InterlockState::Running | InterlockState::Limiting => {
+                let following = trusted && (measured - commanded).abs() > tolerance;
+                conditions |= u16::from(following) << C_FOLLOWING;
+                conditions |= u16::from(!inputs.run_enable) << C_RUN_ENABLE_OFF;
+            }
+            InterlockState::Stopping | InterlockState::StoppingTimed if trusted => {
+                let ahead = measured.abs() > commanded.abs() + tolerance;
+                let behind = measured.abs() + tolerance < commanded.abs();
+                conditions |= u16::from(ahead) << C_AHEAD;
+                conditions |= u16::from(behind) << C_BEHIND;
+            }
+            _ => {}
+        }
+        if conditions != 0 || self.pending {
+            self.monitor(conditions, measured, at_zero && standstill);
+        }
+
+        // The request: refused if not finite, clamped, then governed.
+        let request = inputs.request_rad_s;
+        if request.is_finite() {
+            self.request_rad_s = request;
+            self.refusing = false;
+        } else if !self.refusing {
+            self.refuse(request, measured);
+        }
+        let ceiling = self.params.ceiling.ceiling_rad_s();
+        let clamped = within(self.request_rad_s, self.lower_rad_s, ceiling);
+        let moving = self.state.follows_requests();
+        // The governor is promised a checked tick period; after an overrun
+        // (already tripped above) it is not asked.
+        let decision = if dt_ok {
+            governor.govern(&GovernorInput {
+                clamped_request_rad_s: clamped,
+                commanded: self.command,
+                measured_rad_s: if trusted { Some(measured) } else { None },
+                dt_s,
+                stopping: !moving,
+            })
+        } else {
+            GovernorDecision {
+                admitted_rad_s: 0.0,
+                status: GovernorStatus::Free,
+            }
+        };
+        let target = if moving
+            && decision.admitted_rad_s.to_bits() == clamped.to_bits()
+            && decision.status != GovernorStatus::Fault
+        {
+            // The request admitted as clamped (no governor, or a free one).
+            self.state = if clamped.to_bits() != self.request_rad_s.to_bits()
+                || decision.status == GovernorStatus::Restricting
+            {
+                InterlockState::Limiting
+            } else {
+                InterlockState::Running
+            };
+            // Adding zero turns −0 into +0, so a zero target compares equal.
+            clamped + 0.0
+        } else {
+            self.governed_target(&decision, clamped, moving, measured)
+        };
+        // An unchanged target costs one comparison, not a call; a ramp that
+        // has reached an unchanged target has nothing to step.
+        let retarget = target.to_bits() != self.ramp.target().rad_per_s().to_bits();
+        if retarget {
+            self.retarget(target, measured);
+        }
+        if dt_ok && (retarget || !self.command.target_reached()) {
+            if let Ok(sp) = self.ramp.step(dt_s) {
+                self.command = sp;
+            }
+        }
+
+        match self.state {
+            InterlockState::Running | InterlockState::Limiting => {}
+            _ => self.progress(&Progress {
+                dt_s,
+                dt_ok,
+                measured,
+                commanded,
+                standstill,
+                reset_edge,
+                may_start: inputs.run_enable
+                    && trusted
+                    && angle_ok
+                    && dt_ok
+                    && governor_ok(&decision),
+                cause_gone: dt_ok
+                    && trusted
+                    && angle_ok
+                    && conditions & (1 << C_OVERSPEED | 1 << C_ANGLE_OVER) == 0
+                    && inputs.run_enable
+                    && governor_ok(&decision),
+            }),
+        }
+
+        let run_permit = self.state.permits_running();
+        let brake = if run_permit {
+            self.permit_off_s = 0.0;
+            false
+        } else {
+            let delay = self.params.config.brake_delay_s;
+            if dt_ok && self.permit_off_s < delay {
+                self.permit_off_s += dt_s;
+            }
+            standstill || self.permit_off_s >= delay
+        };
+        TickOutput {
+            command: self.command,
+            run_permit,
+            brake,
+            state: self.state,
+        }
+    }
+
+    /// Debounces this tick's conditions, trips on those that hold, and keeps
+    /// `pending` while any counter runs.
+    #[cold]
+    #[inline(never)]
+    fn monitor(&mut self, conditions: u16, measured: f32, at_rest: bool) {
+        let has = |bit: u32| conditions & (1 << bit) != 0;
+        self.overspeed_ticks = count(self.overspeed_ticks, has(C_OVERSPEED));
+        self.following_ticks = count(self.following_ticks, has(C_FOLLOWING));
+        self.stop_ahead_ticks = count(self.stop_ahead_ticks, has(C_AHEAD));
+        self.stop_behind_ticks = count(self.stop_behind_ticks, has(C_BEHIND));
+        self.angle_ticks = count(self.angle_ticks, has(C_ANGLE_OVER));
+        self.pending = (self.overspeed_ticks
+            | self.following_ticks
+            | self.stop_ahead_ticks
+            | self.stop_behind_ticks
+            | self.angle_ticks)
+            != 0;
 
         // Causes present this tick, in order of severity.
-        let debounce = c.debounce_ticks;
-        if !dt_ok {
+        let debounce = self.params.config.debounce_ticks;
+        if has(C_OVERRUN) {
             self.trip(TripCause::TickOverrun, measured);
         }
         if self.stop_ahead_ticks >= debounce {
             self.trip(TripCause::NotFollowingStop, measured);
         }
-        if !speed_ok {
+        if has(C_SPEED_STALE) {
             self.trip(TripCause::SpeedSensorStale, measured);
         }
-        if disagreement {
+        if self.channel_ticks >= debounce {
             self.trip(TripCause::ChannelDisagreement, measured);
         }
         if self.stop_behind_ticks >= debounce {
@@ -251,66 +415,60 @@ impl<const N: usize> Interlock<N> {
         if self.angle_ticks >= debounce {
             self.trip(TripCause::SwingAngle, measured);
         }
-        if !angle_ok {
+        if has(C_ANGLE_STALE) {
             self.trip(TripCause::AngleSensorStale, measured);
         }
-        let moving_state = matches!(
-            self.state,
-            InterlockState::Running | InterlockState::Limiting
-        );
-        if moving_state && !inputs.run_enable {
-            if at_zero && standstill {
+        if has(C_RUN_ENABLE_OFF) && self.state.follows_requests() {
+            if at_rest {
                 // The normal end of a ride: switched off at rest.
                 self.remove_permit(InterlockState::Ready);
             } else {
                 self.trip(TripCause::RunEnableDropped, measured);
             }
         }
+    }
 
-        // The request: refused if not finite, clamped, then governed.
-        let request = inputs.request_rad_s;
-        if request.is_finite() {
-            self.request_rad_s = request;
-            self.refusing = false;
-        } else if !self.refusing {
-            // Recorded once per run of refused requests.
-            self.refusing = true;
-            self.record(EventKind::RequestRefused, measured, request);
-        }
-        let ceiling = self.params.ceiling().ceiling_rad_s();
-        let clamped = within(self.request_rad_s, self.lower_rad_s, ceiling);
-        let moving_state = matches!(
-            self.state,
-            InterlockState::Running | InterlockState::Limiting
-        );
-        let decision = governor.govern(&GovernorInput {
-            clamped_request_rad_s: clamped,
-            commanded: self.command,
-            measured_rad_s: if trusted { Some(measured) } else { None },
-            dt_s,
-            stopping: !moving_state,
-        });
-        let admitted = decision.admitted_rad_s;
-        let governor_ok = decision.status != GovernorStatus::Fault && admitted.is_finite();
-        if moving_state && !governor_ok {
+    /// The ramp's target when the governor changed the request, faulted, or
+    /// the interlock is not following requests: trips on a governor fault,
+    /// clamps the admitted target again, sets Running or Limiting.
+    #[inline(never)]
+    fn governed_target(
+        &mut self,
+        decision: &GovernorDecision,
+        clamped: f32,
+        moving: bool,
+        measured: f32,
+    ) -> f32 {
+        if moving && !governor_ok(decision) {
             self.trip(TripCause::GovernorFault, measured);
         }
-        let target = if matches!(
-            self.state,
-            InterlockState::Running | InterlockState::Limiting
-        ) {
-            let target = within(admitted, self.lower_rad_s, ceiling);
-            let limiting =
-                clamped != self.request_rad_s || decision.status == GovernorStatus::Restricting;
-            self.state = if limiting {
-                InterlockState::Limiting
-            } else {
-                InterlockState::Running
-            };
-            target
+        if !self.state.follows_requests() {
+            return 0.0;
+        }
+        let ceiling = self.params.ceiling.ceiling_rad_s();
+        let target = within(decision.admitted_rad_s, self.lower_rad_s, ceiling);
+        self.state = if clamped.to_bits() != self.request_rad_s.to_bits()
+            || decision.status == GovernorStatus::Restricting
+            || target.to_bits() != clamped.to_bits()
+        {
+            InterlockState::Limiting
         } else {
-            0.0
+            InterlockState::Running
         };
+        target + 0.0
+    }
+
+    /// Records the first of a run of non-finite requests.
+    #[cold]
+    #[inline(never)]
+    fn refuse(&mut self, request: f32, measured: f32) {
+        self.refusing = true;
+        self.record(EventKind::RequestRefused, measured, request);
+    }
+
+    /// Gives the ramp a new target.
+    #[inline(never)]
+    fn retarget(&mut self, target: f32, measured: f32) {
         if self
             .ramp
             .set_target(AngularSpeed::from_rad_per_s(target))
@@ -320,49 +478,40 @@ impl<const N: usize> Interlock<N> {
             // Zero is always accepted.
             let _ = self.ramp.set_target(AngularSpeed::from_rad_per_s(0.0));
         }
-        if dt_ok {
-            if let Ok(sp) = self.ramp.step(dt_s) {
-                self.command = sp;
-            }
-        }
+    }
 
-        // Progress of a stop.
+    /// The states outside running: stop progress, start, reset.
+    #[inline(never)]
+    fn progress(&mut self, p: &Progress) {
         let now_zero = self.command.speed.rad_per_s() == 0.0 && self.command.target_reached();
         match self.state {
             InterlockState::Stopping => {
-                self.timed_elapsed_s += dt_s;
-                if now_zero && standstill {
-                    self.record(EventKind::PermitRemovedAtStandstill, measured, 0.0);
+                self.timed_elapsed_s += p.dt_s;
+                if now_zero && p.standstill {
+                    self.record(EventKind::PermitRemovedAtStandstill, p.measured, 0.0);
                     self.remove_permit(InterlockState::Tripped);
                 } else if self.timed_elapsed_s >= self.timed_allowance_s {
                     // The ramp's time and the margin are up and the ride is
                     // not confirmed still: it did not follow the stop.
-                    self.trip(TripCause::NotFollowingStop, measured);
+                    self.trip(TripCause::NotFollowingStop, p.measured);
                 }
             }
             InterlockState::StoppingTimed => {
-                self.timed_elapsed_s += dt_s;
+                if p.dt_ok {
+                    self.timed_elapsed_s += p.dt_s;
+                }
                 if now_zero && self.timed_elapsed_s >= self.timed_allowance_s {
-                    self.record(EventKind::PermitRemovedTimeUp, measured, 0.0);
+                    self.record(EventKind::PermitRemovedTimeUp, p.measured, 0.0);
                     self.remove_permit(InterlockState::Tripped);
                 }
             }
-            InterlockState::Ready
-                if inputs.run_enable && trusted && angle_ok && dt_ok && governor_ok =>
-            {
+            InterlockState::Ready if p.may_start => {
                 self.state = InterlockState::Running;
             }
-            InterlockState::Tripped | InterlockState::Faulted if reset_edge => {
-                let cause_gone = self.state == InterlockState::Tripped
-                    && dt_ok
-                    && trusted
-                    && angle_ok
-                    && !over
-                    && !angle_over
-                    && inputs.run_enable
-                    && governor_ok;
-                if cause_gone && now_zero && standstill {
-                    self.record(EventKind::ResetAccepted, measured, 0.0);
+            InterlockState::Tripped | InterlockState::Faulted if p.reset_edge => {
+                let cause_gone = self.state == InterlockState::Tripped && p.cause_gone;
+                if cause_gone && now_zero && p.standstill {
+                    self.record(EventKind::ResetAccepted, p.measured, 0.0);
                     self.state = InterlockState::Ready;
                     self.cause = None;
                     self.seen = 0;
@@ -370,23 +519,10 @@ impl<const N: usize> Interlock<N> {
                     // Once per latch, so that pressing on cannot push the
                     // trip's own events out of the record.
                     self.seen |= RESET_REFUSED_BIT;
-                    self.record(EventKind::ResetRefused, measured, commanded);
+                    self.record(EventKind::ResetRefused, p.measured, p.commanded);
                 }
             }
             _ => {}
-        }
-
-        let run_permit = self.state.permits_running();
-        if run_permit {
-            self.permit_off_s = 0.0;
-        } else if dt_ok && self.permit_off_s < c.brake_delay_s {
-            self.permit_off_s += dt_s;
-        }
-        TickOutput {
-            command: self.command,
-            run_permit,
-            brake: !run_permit && (standstill || self.permit_off_s >= c.brake_delay_s),
-            state: self.state,
         }
     }
 

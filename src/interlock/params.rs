@@ -89,8 +89,8 @@ pub struct SafetyConfig {
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SafetyParams {
-    config: SafetyConfig,
-    ceiling: SpeedCeiling,
+    pub(crate) config: SafetyConfig,
+    pub(crate) ceiling: SpeedCeiling,
     limits: RampLimits,
     stamp: u32,
 }

@@ -29,6 +29,13 @@ pub enum InterlockState {
 }
 
 impl InterlockState {
+    /// `true` in [`InterlockState::Running`] and [`InterlockState::Limiting`],
+    /// where the ramp follows the (clamped, governed) request.
+    #[must_use]
+    pub const fn follows_requests(self) -> bool {
+        matches!(self, Self::Running | Self::Limiting)
+    }
+
     /// `true` where the run permit is given.
     #[must_use]
     pub const fn permits_running(self) -> bool {

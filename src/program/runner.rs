@@ -114,7 +114,11 @@ impl<'t> CycleRunner<'t> {
                             // A refused dt leaves the player where it was; the
                             // interlock trips on the same dt.
                             if let Ok(out) = player.step(dt_s) {
-                                self.request_rad_s = out.request_rad_s;
+                                self.request_rad_s = lead(
+                                    out.request_rad_s,
+                                    out.slope_rad_s2,
+                                    interlock.params().ramp_limits().max_jerk_rad_s3(),
+                                );
                             }
                         } else {
                             self.request_rad_s = player.output().request_rad_s;
@@ -214,4 +218,15 @@ impl<'t> CycleRunner<'t> {
             _ => None,
         };
     }
+}
+
+/// The request that makes the interlock's jerk-limited ramp follow a table
+/// rather than trail it: the table's speed plus the speed the ramp would
+/// still gain while braking the table's slope `a` at the jerk limit `j`,
+/// a·|a|/(2j). Re-planning every tick toward that point, the time-optimal
+/// ramp alternates its jerk around the table's path (a sliding mode, with an
+/// acceleration ripple of j·dt) instead of lagging it by up to a²/(2j); at
+/// the table's end the slope is zero and the ramp lands on the last sample.
+fn lead(speed_rad_s: f32, slope_rad_s2: f32, jerk_rad_s3: f32) -> f32 {
+    speed_rad_s + slope_rad_s2 * libm::fabsf(slope_rad_s2) / (2.0 * jerk_rad_s3)
 }

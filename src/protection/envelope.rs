@@ -26,16 +26,19 @@
 use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
 use crate::seat_model::{SeatModel, SeatState};
-use crate::units::{Angle, AngularSpeed};
+use crate::units::Angle;
 
-/// Cells of the speed grid. The grid is finer towards the top speed, where
-/// the room shrinks to zero: cell i spans
-/// `top·(1 − (1 − i/N)²) … top·(1 − (1 − (i+1)/N)²)`.
-pub const CELLS: usize = 48;
+/// Cells of the speed grid: cell i spans the speeds whose steady angles lie
+/// between i/N and (i+1)/N of the certified angle.
+pub const CELLS: usize = 32;
 
-/// Sample points over the cone for the bound K (polar × azimuthal).
-const K_POLAR: usize = 24;
-const K_AZIMUTH: usize = 12;
+/// Sample intervals over the cone for the bound K (polar × azimuthal).
+pub const K_POLAR: usize = 16;
+/// See [`K_POLAR`].
+pub const K_AZIMUTH: usize = 8;
+/// K is sampled at every `K_STRIDE`-th grid speed; a cell takes the larger of
+/// the two samples around it.
+pub const K_STRIDE: usize = 4;
 
 /// Factor on the sampled K: the sup is taken over a finite sample, so the
 /// value between samples is covered by this allowance (checked against a
@@ -49,6 +52,10 @@ pub struct SwingEnvelope {
     model: SeatModel,
     /// Speed at which the steady angle is the certified angle, rad/s.
     top_rad_s: f32,
+    /// Grid speeds g_0 = 0 < g_1 < … < g_N = top: the speeds whose steady
+    /// angles are i/N of the certified angle (closed form, and finer where
+    /// the angle is most sensitive to the speed).
+    speeds: [f32; CELLS + 1],
     /// V_eq at the grid speeds g_0 … g_N.
     v_eq: [f32; CELLS + 1],
     /// dV_eq/dω = −ω ρs² at the grid speeds (envelope theorem).
@@ -88,10 +95,6 @@ impl SwingEnvelope {
             return Err(ParamError::OutOfRange("certified_angle_deg"));
         }
         let model = SeatModel::new(geometry, 0.0)?;
-        let top_rad_s = geometry
-            .speed_for_angle(certified)
-            .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
-            .rad_per_s();
         let l = geometry.length_m();
         let a = geometry.hub_offset_m() / l;
         let b = geometry.gravity().mps2() / l;
@@ -99,41 +102,55 @@ impl SwingEnvelope {
         let c = a + s_c;
         let chain = geometry.suspension() == Suspension::Chain;
 
+        let mut speeds = [0.0_f32; CELLS + 1];
         let mut v_eq = [0.0_f32; CELLS + 1];
         let mut v_eq_slope = [0.0_f32; CELLS + 1];
         let mut k_at = [0.0_f32; CELLS + 1];
         let mut t_cap = [0.0_f32; CELLS + 1];
-        for (i, ((v, k), t)) in v_eq
-            .iter_mut()
-            .zip(k_at.iter_mut())
-            .zip(t_cap.iter_mut())
-            .enumerate()
-        {
-            let w = grid(top_rad_s, i);
-            let theta = if i == CELLS {
-                phi_c
+        let mut i = 0;
+        while i <= CELLS {
+            #[allow(clippy::cast_precision_loss)]
+            let theta = phi_c * i as f32 / CELLS as f32;
+            let w = if i == 0 {
+                0.0
             } else {
                 geometry
-                    .angle_for_speed(AngularSpeed::from_rad_per_s(w))?
-                    .rad()
-                    .min(phi_c)
+                    .speed_for_angle(Angle::from_rad(theta))
+                    .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
+                    .rad_per_s()
             };
             let (st, ct) = crate::math::sin_cos(theta);
             let rho_s2 = (a + st) * (a + st);
-            *v = -b * ct - 0.5 * w * w * rho_s2;
-            if let Some(d) = v_eq_slope.get_mut(i) {
+            let v = -b * ct - 0.5 * w * w * rho_s2;
+            if let (Some(g), Some(ve), Some(d), Some(t)) = (
+                speeds.get_mut(i),
+                v_eq.get_mut(i),
+                v_eq_slope.get_mut(i),
+                t_cap.get_mut(i),
+            ) {
+                *g = w;
+                *ve = v;
                 *d = -w * rho_s2;
+                *t = (-b * c_c - 0.5 * w * w * c * c - v).max(0.0);
             }
-            *t = (-b * c_c - 0.5 * w * w * c * c - *v).max(0.0);
-            *k = sampled_k(a, b, w, phi_c, *v, rho_s2, chain);
+            if i % K_STRIDE == 0 || i == CELLS {
+                if let Some(k) = k_at.get_mut(i) {
+                    *k = sampled_k_with(a, b, w, phi_c, v, rho_s2, chain, K_POLAR, K_AZIMUTH);
+                }
+            }
+            i += 1;
         }
+        let top_rad_s = at(&speeds, CELLS, 0.0);
         let mut room = [0.0_f32; CELLS];
         let mut growth = [0.0_f32; CELLS];
         let mut cumulative = [0.0_f32; CELLS + 1];
         let mut sum = 0.0_f32;
         for i in 0..CELLS {
-            let upper = grid(top_rad_s, i + 1);
-            let k = K_ALLOWANCE * at(&k_at, i, 0.0).max(at(&k_at, i + 1, 0.0));
+            let lower = at(&speeds, i, 0.0);
+            let upper = at(&speeds, i + 1, 0.0);
+            let below = i - i % K_STRIDE;
+            let above = (below + K_STRIDE).min(CELLS);
+            let k = K_ALLOWANCE * at(&k_at, below, 0.0).max(at(&k_at, above, 0.0));
             let h_rel = if chain {
                 c * core::f32::consts::SQRT_2
             } else {
@@ -149,7 +166,7 @@ impl SwingEnvelope {
             if let Some(cu) = cumulative.get_mut(i) {
                 *cu = sum;
             }
-            sum += half_g * (upper - grid(top_rad_s, i));
+            sum += half_g * (upper - lower);
         }
         if let Some(cu) = cumulative.get_mut(CELLS) {
             *cu = sum;
@@ -157,6 +174,7 @@ impl SwingEnvelope {
         Ok(Self {
             model,
             top_rad_s,
+            speeds,
             v_eq,
             v_eq_slope,
             cone: (b * c_c, 0.5 * c * c),
@@ -178,32 +196,32 @@ impl SwingEnvelope {
         self.top_rad_s
     }
 
-    /// Cell holding speed magnitude `w` (`None` at or above the top speed).
+    /// Cell holding speed magnitude `w` (`None` at or above the top speed,
+    /// or not finite): a bisection over the grid, at most 6 steps.
     fn cell(&self, w: f32) -> Option<usize> {
         if !(w >= 0.0 && w < self.top_rad_s) {
             return None;
         }
-        let x = 1.0 - crate::math::sqrt(1.0 - w / self.top_rad_s);
-        // Truncation toward zero of a value in [0, N); the checks below fix
-        // any rounding at a cell edge.
-        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
-        let mut i = ((x * CELLS as f32) as usize).min(CELLS - 1);
-        if w < grid(self.top_rad_s, i) && i > 0 {
-            i -= 1;
-        } else if i + 1 < CELLS && w >= grid(self.top_rad_s, i + 1) {
-            i += 1;
+        let (mut lo, mut hi) = (0, CELLS);
+        while hi - lo > 1 {
+            let mid = (lo + hi) / 2;
+            if w >= at(&self.speeds, mid, 0.0) {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
         }
-        Some(i)
+        Some(lo)
     }
 
-    /// Upper bound of V_eq at speed magnitude `w`… as a lower bound: the
-    /// chord between grid points, which lies below V_eq because V_eq is
-    /// concave in ω (d²V_eq/dω² = −ρs² − 2ωρs dρs/dω < 0), so that
-    /// E − chord is an upper bound of the swing energy.
+    /// A lower bound of V_eq at speed magnitude `w`: the chord between grid
+    /// points, which lies below V_eq because V_eq is concave in ω (the
+    /// minimum over q of V(q, ω), each concave in ω), so that E − chord is an
+    /// upper bound of the swing energy.
     fn v_eq_chord(&self, w: f32) -> f32 {
         match self.cell(w) {
             Some(i) => {
-                let (g0, g1) = (grid(self.top_rad_s, i), grid(self.top_rad_s, i + 1));
+                let (g0, g1) = (at(&self.speeds, i, 0.0), at(&self.speeds, i + 1, 0.0));
                 let (v0, v1) = (at(&self.v_eq, i, 0.0), at(&self.v_eq, i + 1, 0.0));
                 v0 + (v1 - v0) * (w - g0) / (g1 - g0)
             }
@@ -228,7 +246,7 @@ impl SwingEnvelope {
         let Some(i) = self.cell(w) else {
             return 0.0;
         };
-        let (g0, g1) = (grid(self.top_rad_s, i), grid(self.top_rad_s, i + 1));
+        let (g0, g1) = (at(&self.speeds, i, 0.0), at(&self.speeds, i + 1, 0.0));
         let t0 = at(&self.v_eq, i, 0.0) + at(&self.v_eq_slope, i, 0.0) * (w - g0);
         let t1 = at(&self.v_eq, i + 1, 0.0) + at(&self.v_eq_slope, i + 1, 0.0) * (w - g1);
         let e_adm = -self.cone.0 - self.cone.1 * w * w;
@@ -244,7 +262,7 @@ impl SwingEnvelope {
         match self.cell(w) {
             Some(i) => {
                 at(&self.cumulative, i, 0.0)
-                    + at(&self.growth, i, 0.0) * (w - grid(self.top_rad_s, i))
+                    + at(&self.growth, i, 0.0) * (w - at(&self.speeds, i, 0.0))
             }
             None => {
                 at(&self.cumulative, CELLS, 0.0)
@@ -253,29 +271,31 @@ impl SwingEnvelope {
         }
     }
 
-    /// Smallest of √T_cap(ω) + growth_to(ω) over ω in `[lo, hi]` (speed
-    /// magnitudes), with cell bounds: the binding point of a move down.
-    /// Bounded by [`CELLS`] iterations.
+    /// Smallest slack along a move down from speed magnitude `hi` to `lo`
+    /// (`lo` ≤ `hi`), when √S has reached `start` at `hi`: at each ω on the
+    /// way √S ≤ start + growth_to(hi) − growth_to(ω) must stay below the room
+    /// at ω + `u`. Checked cell by cell with the cell's bounds (the growth
+    /// counted from the cell's lower end, the room read at its upper end);
+    /// bounded by [`CELLS`] iterations.
     #[must_use]
-    pub fn lowest_reserve(&self, lo: f32, hi: f32) -> f32 {
-        let first = self.cell(lo);
-        let last = self.cell(hi);
-        let Some(first) = first else {
-            // The whole range is at or above the top: no room at all.
-            return self.growth_to(lo);
-        };
-        let last = last.unwrap_or(CELLS - 1);
-        let mut lowest = f32::INFINITY;
+    pub fn down_slack(&self, start: f32, lo: f32, hi: f32, u: f32) -> f32 {
+        let top_g = self.growth_to(hi);
+        let first = self.cell(lo).unwrap_or(CELLS);
+        let last = self.cell(hi).unwrap_or(CELLS);
+        let mut slack = f32::INFINITY;
+        if last == CELLS {
+            // The piece starts at or above the top: no room there.
+            slack = -start;
+        }
         let mut i = first;
         while i <= last && i < CELLS {
-            let z = at(&self.room, i, 0.0) + at(&self.cumulative, i, 0.0);
-            lowest = lowest.min(z);
+            let low = at(&self.speeds, i, 0.0).max(lo);
+            let high = at(&self.speeds, i + 1, 0.0).min(hi);
+            let grown = start + top_g - self.growth_to(low);
+            slack = slack.min(self.room(high + u) - grown);
             i += 1;
         }
-        if self.cell(hi).is_none() {
-            lowest = lowest.min(self.growth_to(self.top_rad_s));
-        }
-        lowest
+        slack
     }
 
     /// Largest ½ G over the cells, 1/s per rad/s.
@@ -293,16 +313,12 @@ impl SwingEnvelope {
     /// Grid speed `i` (0 ≤ i ≤ N), rad/s.
     #[must_use]
     pub fn grid_speed(&self, i: usize) -> f32 {
-        grid(self.top_rad_s, i.min(CELLS))
+        at(&self.speeds, i.min(CELLS), 0.0)
     }
 }
 
-/// Grid speed i of a grid with top speed `top`.
-fn grid(top: f32, i: usize) -> f32 {
-    #[allow(clippy::cast_precision_loss)]
-    let u = 1.0 - i as f32 / CELLS as f32;
-    top * (1.0 - u * u)
-}
+/// Most azimuth intervals [`sampled_k_with`] takes.
+pub const MAX_AZIMUTH: usize = 256;
 
 /// Largest |ρ² − ρs²| / √(V − V_eq) over a sample of the cone φ ≤ φc
 /// (outward half; the potential is symmetric in the azimuth), at speed `w`,
@@ -322,30 +338,33 @@ pub fn sampled_k_with(
     azimuth: usize,
 ) -> f32 {
     let mut k = 0.0_f32;
-    let azimuths = if chain { azimuth } else { 1 };
+    let azimuths = if chain {
+        azimuth.clamp(1, MAX_AZIMUTH)
+    } else {
+        1
+    };
+    // cos β for every azimuth, computed once (no trigonometry in the inner loop).
+    let mut cos_beta = [0.0_f32; MAX_AZIMUTH + 1];
+    for (m, cb) in cos_beta.iter_mut().enumerate().take(azimuths + 1) {
+        #[allow(clippy::cast_precision_loss)]
+        let beta = core::f32::consts::PI * m as f32 / azimuths as f32;
+        *cb = crate::math::sin_cos(beta).1;
+    }
+    let polar = polar.max(1);
     let mut p = 0;
     while p <= polar {
         #[allow(clippy::cast_precision_loss)]
         let phi = phi_c * p as f32 / polar as f32;
         let (sp, cp) = crate::math::sin_cos(phi);
-        let mut m = 0;
-        while m <= azimuths {
-            #[allow(clippy::cast_precision_loss)]
-            let beta = core::f32::consts::PI * m as f32 / azimuths as f32;
-            let (_, cb) = crate::math::sin_cos(beta);
+        for &cb in cos_beta.iter().take(azimuths + 1) {
             let rho2 = a * a + 2.0 * a * sp * cb + sp * sp;
             let v = -b * cp - 0.5 * w * w * rho2;
             let dv = v - v_eq;
             if dv > 1.0e-5 {
                 k = k.max(libm::fabsf(rho2 - rho_s2) / crate::math::sqrt(dv));
             }
-            m += 1;
         }
         p += 1;
     }
     k
-}
-
-fn sampled_k(a: f32, b: f32, w: f32, phi_c: f32, v_eq: f32, rho_s2: f32, chain: bool) -> f32 {
-    sampled_k_with(a, b, w, phi_c, v_eq, rho_s2, chain, K_POLAR, K_AZIMUTH)
 }

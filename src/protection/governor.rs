@@ -83,9 +83,6 @@ pub struct Certificate {
     pub slack_per_s: f32,
     /// Whether the admitted target is certified.
     pub certified: bool,
-    /// Slack of a stop to zero from the present state (the same bound; a
-    /// negative value says the bound cannot vouch for a stop from here).
-    pub stop_slack_per_s: f32,
     /// Largest swing energy bound √S over the lengths, 1/s.
     pub swing_per_s: f32,
 }
@@ -110,6 +107,9 @@ impl SwingGovernor {
     ///
     /// # Errors
     /// [`ParamError`] naming the refused parameter.
+    // Not inlined: the governor is large, and an inlined constructor keeps
+    // several copies of it in the caller's frame (too much for a 16 KiB M0).
+    #[inline(never)]
     pub fn new(geometry: &RideGeometry, params: &GovernorParams) -> Result<Self, ParamError> {
         let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
         let l = geometry.length_m();
@@ -164,7 +164,6 @@ impl SwingGovernor {
             last: Certificate {
                 slack_per_s: 0.0,
                 certified: false,
-                stop_slack_per_s: 0.0,
                 swing_per_s: 0.0,
             },
         })
@@ -217,6 +216,24 @@ impl SwingGovernor {
             .fold(f32::INFINITY, f32::min)
     }
 
+    /// Slack of a controlled stop to zero from the commanded state (`v`,
+    /// `a`) at the ramp's jerk, by the same bound (a negative value says the
+    /// bound cannot vouch for a stop from here; docs/dynamic_protection.md
+    /// explains why it rarely can from high speed, and how stops are checked
+    /// instead). Not part of the per-tick decision.
+    #[must_use]
+    pub fn stop_slack(&self, v: f32, a: f32) -> f32 {
+        self.slack(self.estimator.speed_rad_s(), v, a, 0.0)
+    }
+
+    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
+    fn steepest_growth(&self) -> f32 {
+        self.envelopes
+            .iter()
+            .map(SwingEnvelope::steepest_growth)
+            .fold(0.0, f32::max)
+    }
+
     /// Slack of the path from the commanded state (`v`, `a`) through the
     /// braking point to `target`, smallest over the lengths, 1/s.
     #[must_use]
@@ -252,7 +269,6 @@ impl SwingGovernor {
         let request = input.clamped_request_rad_s;
         let margin = self.params.margin_per_s;
         let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
-        let stop_slack = self.slack(measured, v, a, 0.0);
         let swing = self
             .envelopes
             .iter()
@@ -263,7 +279,6 @@ impl SwingGovernor {
             *last = Certificate {
                 slack_per_s: slack,
                 certified,
-                stop_slack_per_s: stop_slack,
                 swing_per_s: swing,
             };
             admitted
@@ -281,9 +296,20 @@ impl SwingGovernor {
         // the decision period per decision, toward the request.
         let held = self.admitted;
         let reach = self.params.target_rate_rad_s2 * self.params.estimator_period_s;
-        let trial = held + (request - held).clamp(-reach, reach);
+        // max/min rather than clamp: no assertion on the bounds, so no panic path.
+        let trial = held + (request - held).max(-reach).min(reach);
         let s_trial = self.slack(measured, v, a, trial);
-        if s_trial >= margin {
+        // A move away from standstill must leave enough slack for the first
+        // step back down to be certified too (the bound charges a step down
+        // at most ½G per rad/s, and the room grows back as the speed falls),
+        // so that lowering is never blocked by the governor's own ascent.
+        let lowering = libm::fabsf(trial) < libm::fabsf(held);
+        let reserve = if lowering {
+            0.0
+        } else {
+            2.0 * reach * self.steepest_growth()
+        };
+        if s_trial >= margin + reserve {
             self.admitted = record(trial, s_trial, true, &mut self.last);
             if trial == request {
                 return GovernorDecision {
@@ -328,12 +354,10 @@ fn magnitude_piece(env: &SwingEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -
         *r += env.growth_to(m2) - env.growth_to(m1);
         env.room(m2 + u) - *r
     } else {
-        // Down: binding where room + growth_to is smallest over the piece
-        // (the room read u higher, and the growth counted from there).
-        let g1 = env.growth_to(m1);
-        let reserve = env.lowest_reserve(m2 + u, m1 + u) - env.steepest_growth() * u;
-        let slack = reserve - (*r + g1);
-        *r += g1 - env.growth_to(m2);
+        // Down: the room grows back as the speed falls, √S may grow too;
+        // checked cell by cell.
+        let slack = env.down_slack(*r, m2, m1, u);
+        *r += env.growth_to(m1) - env.growth_to(m2);
         slack
     }
 }

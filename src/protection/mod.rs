@@ -22,6 +22,8 @@ pub mod closed_loop;
 pub mod envelope;
 pub mod estimator;
 pub mod governor;
+#[cfg(feature = "std")]
+pub mod search;
 
 pub use envelope::SwingEnvelope;
 pub use estimator::{EstimatorFault, SwingEstimator};

@@ -214,10 +214,12 @@ pub struct StepReport {
     /// Largest angle of the link from vertical during the step, °.
     pub peak_angle_deg: f64,
     /// Largest angle between the link and its steady direction at the
-    /// step's final speed, over the settling window after the step (one
-    /// rest-pendulum period 2π√(L/g), cut short when the next step changes
-    /// the speed), °; `None` when the next step changes the speed at once
-    /// (less than half that window to look at).
+    /// step's final commanded speed, over the settling window after the step
+    /// (one rest-pendulum period 2π√(L/g), cut short when the next step
+    /// changes the command) — or, when the next step changes the command at
+    /// once, over the last such window of the step itself while its command
+    /// was already final (a hold) —, °; `None` when neither gives half a
+    /// window to look at.
     pub residual_swing_deg: Option<f64>,
     /// Largest load factor during the step.
     pub peak_load_factor: f64,
@@ -234,6 +236,7 @@ pub fn step_reports(
     let window = std::f64::consts::TAU * (seat.length_m() / seat.gravity_mps2()).sqrt();
     let mut reports: Vec<StepReport> = Vec::new();
     let mut start = 0.0;
+    let trace_end = trace.last().map_or(0.0, |s| s.time_s);
     for (i, s) in trace.iter().enumerate() {
         let last = trace.get(i + 1).is_none_or(|n| n.step != s.step);
         if !last {
@@ -248,20 +251,36 @@ pub fn step_reports(
             peak = peak.max(o.state.angle_from_vertical_rad());
             load = load.max(o.link.load_factor);
         }
-        // The settling window: from the end of the step while the shaft stays
-        // at the step's final speed.
-        let final_speed = s.shaft_rad_s;
+        // The settling window: from the end of the step while the command
+        // stays at the step's final speed (the shaft follows it with the
+        // drive's lag).
+        let final_speed = s.command_rad_s;
         let steady = seat.steady_state(final_speed);
         let moved = trace
             .get(i + 1..)
             .unwrap_or(&[])
             .iter()
-            .find(|n| (n.shaft_rad_s - final_speed).abs() > 1.0e-3 || n.time_s > end + window)
-            .map_or(end + window, |n| n.time_s);
-        let residual = (moved - end >= 0.5 * window).then(|| {
+            .find(|n| n.command_rad_s != final_speed || n.time_s > end + window)
+            .map_or(trace_end.min(end + window), |n| n.time_s);
+        // When the next step changes the command at once (a hold followed by
+        // a ramp), the step's own tail at that command is the window.
+        let settled_from = trace
+            .get(..=i)
+            .unwrap_or(&[])
+            .iter()
+            .rev()
+            .take_while(|p| p.command_rad_s == final_speed && p.time_s >= start)
+            .last()
+            .map_or(end, |p| p.time_s);
+        let (from, to) = if moved - end >= 0.5 * window {
+            (end, moved)
+        } else {
+            ((end - window).max(settled_from), end)
+        };
+        let residual = (to - from >= 0.5 * window).then(|| {
             seat_samples
                 .iter()
-                .filter(|o| o.time_s >= end && o.time_s <= moved)
+                .filter(|o| o.time_s >= from && o.time_s <= to)
                 .map(|o| o.state.angle_to(steady.direction()))
                 .fold(0.0_f64, f64::max)
                 .to_degrees()

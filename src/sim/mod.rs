@@ -12,6 +12,7 @@
 //!   swing, peak load factor, chain slack — plus a time series.
 //! * [`closed_loop`]: the controller in the loop — interlock, governor and ride
 //!   program commanding the drive model through simulated sensors.
+//! * [`cycle`]: a ride-cycle program file run on the simulated ride.
 //! * [`output`]: the time series as CSV and as an SVG plot.
 //!
 //! The equations, the impulse rule, slack detection and the accuracy achieved
@@ -21,6 +22,7 @@
 //! function: it models one rigid seat on a massless link and nothing else.
 
 pub mod closed_loop;
+pub mod cycle;
 pub mod drive;
 pub mod dynamics;
 pub mod engine;

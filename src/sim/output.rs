@@ -94,96 +94,166 @@ fn value_range(curves: &[&[(f64, f64)]]) -> (f64, f64) {
     (lo - margin, hi + margin)
 }
 
+/// One curve of a panel.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Curve {
+    /// Legend text.
+    pub label: String,
+    /// (time s, value) points, in time order (thinned when drawn).
+    pub points: Vec<(f64, f64)>,
+    /// Colour (red, green, blue).
+    pub colour: (u8, u8, u8),
+    /// Line width, pixels.
+    pub width: u32,
+}
+
+impl Curve {
+    /// A curve from points.
+    #[must_use]
+    pub fn new(label: &str, points: Vec<(f64, f64)>, colour: (u8, u8, u8), width: u32) -> Self {
+        Self {
+            label: label.to_owned(),
+            points,
+            colour,
+            width,
+        }
+    }
+}
+
+/// One panel: its curves and the label of its value axis.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Panel {
+    /// Value-axis label.
+    pub axis: String,
+    /// The curves.
+    pub curves: Vec<Curve>,
+}
+
+fn draw_panel<DB: DrawingBackend>(
+    area: &DrawingArea<DB, plotters::coord::Shift>,
+    panel: &Panel,
+    (t0, t1): (f64, f64),
+) -> Result<(), PlotError> {
+    let thinned: Vec<Vec<(f64, f64)>> = panel
+        .curves
+        .iter()
+        .map(|c| thin(c.points.iter().copied()))
+        .collect();
+    let refs: Vec<&[(f64, f64)]> = thinned.iter().map(Vec::as_slice).collect();
+    let (lo, hi) = value_range(&refs);
+    let mut chart = ChartBuilder::on(area)
+        .margin(10)
+        .x_label_area_size(35)
+        .y_label_area_size(60)
+        .build_cartesian_2d(t0..t1, lo..hi)
+        .map_err(plot_error)?;
+    chart
+        .configure_mesh()
+        .x_desc("time [s]")
+        .y_desc(panel.axis.as_str())
+        .draw()
+        .map_err(plot_error)?;
+    for (curve, points) in panel.curves.iter().zip(thinned) {
+        let (r, g, b) = curve.colour;
+        let colour = RGBColor(r, g, b);
+        chart
+            .draw_series(LineSeries::new(points, colour.stroke_width(curve.width)))
+            .map_err(plot_error)?
+            .label(curve.label.as_str())
+            .legend(move |(x, y)| PathElement::new([(x, y), (x + 20, y)], colour));
+    }
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::LowerRight)
+        .border_style(BLACK)
+        .background_style(WHITE.mix(0.8))
+        .draw()
+        .map_err(plot_error)?;
+    Ok(())
+}
+
+/// Draws panels stacked over a common time axis, as an SVG document.
+///
+/// # Errors
+/// [`PlotError`] if plotters fails.
+pub fn render_panels(title: &str, panels: &[Panel]) -> Result<String, PlotError> {
+    let (t0, t1) = panels
+        .iter()
+        .flat_map(|p| p.curves.iter())
+        .flat_map(|c| c.points.iter())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &(t, _)| {
+            (lo.min(t), hi.max(t))
+        });
+    let (t0, t1) = if t0.is_finite() && t1.is_finite() {
+        (t0, t1.max(t0 + 1e-3))
+    } else {
+        (0.0, 1.0)
+    };
+    let rows = u32::try_from(panels.len().max(1)).unwrap_or(1);
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (1000, 60 + 320 * rows)).into_drawing_area();
+        root.fill(&WHITE).map_err(plot_error)?;
+        let root = root.titled(title, ("sans-serif", 20)).map_err(plot_error)?;
+        let areas = root.split_evenly((panels.len().max(1), 1));
+        for (area, panel) in areas.iter().zip(panels) {
+            draw_panel(area, panel, (t0, t1))?;
+        }
+        root.present().map_err(plot_error)?;
+    }
+    Ok(svg)
+}
+
+/// Shaft speed to rpm.
+pub(crate) const RPM_PER_RAD_S: f64 = 60.0 / core::f64::consts::TAU;
+
 /// Draws shaft speed (upper panel, rpm) and swing angles (lower panel,
 /// degrees) against time, as an SVG document.
 ///
 /// # Errors
 /// [`PlotError`] if plotters fails.
 pub fn render_svg(trace: &[TraceSample], title: &str) -> Result<String, PlotError> {
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (1000, 700)).into_drawing_area();
-        root.fill(&WHITE).map_err(plot_error)?;
-        let root = root.titled(title, ("sans-serif", 20)).map_err(plot_error)?;
-        let (upper, lower) = root.split_vertically(300);
-        let t0 = trace.first().map_or(0.0, |s| s.time_s);
-        let t1 = trace.last().map_or(1.0, |s| s.time_s).max(t0 + 1e-3);
-        let rpm = 60.0 / core::f64::consts::TAU;
-
-        let speed = thin(trace.iter().map(|s| (s.time_s, s.speed_rad_s * rpm)));
-        let command = thin(trace.iter().map(|s| (s.time_s, s.command_rad_s * rpm)));
-        let (lo, hi) = value_range(&[&speed, &command]);
-        let mut chart = ChartBuilder::on(&upper)
-            .margin(10)
-            .x_label_area_size(35)
-            .y_label_area_size(60)
-            .build_cartesian_2d(t0..t1, lo..hi)
-            .map_err(plot_error)?;
-        chart
-            .configure_mesh()
-            .x_desc("time [s]")
-            .y_desc("shaft speed [rpm]")
-            .draw()
-            .map_err(plot_error)?;
-        chart
-            .draw_series(LineSeries::new(
-                command,
-                RGBColor(150, 150, 150).stroke_width(1),
-            ))
-            .map_err(plot_error)?
-            .label("command")
-            .legend(|(x, y)| PathElement::new([(x, y), (x + 20, y)], RGBColor(150, 150, 150)));
-        chart
-            .draw_series(LineSeries::new(speed, BLUE.stroke_width(2)))
-            .map_err(plot_error)?
-            .label("shaft")
-            .legend(|(x, y)| PathElement::new([(x, y), (x + 20, y)], BLUE));
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .border_style(BLACK)
-            .background_style(WHITE.mix(0.8))
-            .draw()
-            .map_err(plot_error)?;
-
-        let vertical = thin(trace.iter().map(|s| (s.time_s, s.angle_from_vertical_deg)));
-        let radial = thin(trace.iter().map(|s| (s.time_s, s.radial_angle_deg)));
-        let tangential = thin(trace.iter().map(|s| (s.time_s, s.tangential_angle_deg)));
-        let (lo, hi) = value_range(&[&vertical, &radial, &tangential]);
-        let mut chart = ChartBuilder::on(&lower)
-            .margin(10)
-            .x_label_area_size(35)
-            .y_label_area_size(60)
-            .build_cartesian_2d(t0..t1, lo..hi)
-            .map_err(plot_error)?;
-        chart
-            .configure_mesh()
-            .x_desc("time [s]")
-            .y_desc("swing angle [deg]")
-            .draw()
-            .map_err(plot_error)?;
-        let curves = [
-            (vertical, "from vertical", RED),
-            (radial, "radial", GREEN),
-            (tangential, "tangential", MAGENTA),
-        ];
-        for (points, label, colour) in curves {
-            chart
-                .draw_series(LineSeries::new(points, colour.stroke_width(1)))
-                .map_err(plot_error)?
-                .label(label)
-                .legend(move |(x, y)| PathElement::new([(x, y), (x + 20, y)], colour));
-        }
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::LowerRight)
-            .border_style(BLACK)
-            .background_style(WHITE.mix(0.8))
-            .draw()
-            .map_err(plot_error)?;
-        root.present().map_err(plot_error)?;
-    }
-    Ok(svg)
+    let series = |f: fn(&TraceSample) -> f64| trace.iter().map(|s| (s.time_s, f(s))).collect();
+    render_panels(
+        title,
+        &[
+            Panel {
+                axis: "shaft speed [rpm]".into(),
+                curves: vec![
+                    Curve::new(
+                        "command",
+                        series(|s| s.command_rad_s * RPM_PER_RAD_S),
+                        (150, 150, 150),
+                        1,
+                    ),
+                    Curve::new(
+                        "shaft",
+                        series(|s| s.speed_rad_s * RPM_PER_RAD_S),
+                        (0, 0, 255),
+                        2,
+                    ),
+                ],
+            },
+            Panel {
+                axis: "swing angle [deg]".into(),
+                curves: vec![
+                    Curve::new(
+                        "from vertical",
+                        series(|s| s.angle_from_vertical_deg),
+                        (255, 0, 0),
+                        1,
+                    ),
+                    Curve::new("radial", series(|s| s.radial_angle_deg), (0, 255, 0), 1),
+                    Curve::new(
+                        "tangential",
+                        series(|s| s.tangential_angle_deg),
+                        (255, 0, 255),
+                        1,
+                    ),
+                ],
+            },
+        ],
+    )
 }
 
 #[cfg(test)]

@@ -7,7 +7,7 @@
 use cortex_m_rt::entry;
 use swingdrive_firmware::checks::{self, Tally};
 use swingdrive_firmware::{exit, say};
-use swingdrive_firmware::{interlock_checks, ramp_checks};
+use swingdrive_firmware::{interlock_checks, player_checks, ramp_checks};
 
 #[entry]
 fn main() -> ! {
@@ -17,6 +17,7 @@ fn main() -> ! {
     ramp_checks::ramp(&mut tally);
     #[cfg(feature = "fixed")]
     ramp_checks::fixed_ramp(&mut tally);
+    player_checks::player(&mut tally);
     interlock_checks::interlock(&mut tally);
     sizes();
     say(format_args!(

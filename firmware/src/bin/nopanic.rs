@@ -19,6 +19,7 @@ use swingdrive_firmware::{exit, say};
 
 /// Exercises the steady-state physics: every public function of the
 /// geometry, units and commissioning modules that firmware would call.
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn steady_state() -> f32 {
     let mut acc = 0.0;
     let suspension = if black_box(true) {
@@ -61,6 +62,7 @@ fn steady_state() -> f32 {
 
 /// Exercises the speed ramp: every per-tick and planning entry point
 /// (limits, targets, steps, re-seed, queries, sampling, plans).
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn ramp() -> f32 {
     let mut acc = 0.0;
     let reverse = if black_box(true) {
@@ -119,8 +121,43 @@ fn ramp() -> f32 {
     acc
 }
 
+/// Exercises the swing governor's construction and per-tick path (estimator
+/// step, sensor correction, decision).
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
+fn swing_governor() -> f32 {
+    use swingdrive::{GovernorInput, GovernorParams, RequestGovernor, Setpoint, SwingGovernor};
+    let suspension = if black_box(true) {
+        Suspension::Chain
+    } else {
+        Suspension::Rod
+    };
+    let Ok(ride) = RideGeometry::new(
+        black_box(4.0),
+        black_box(6.5),
+        suspension,
+        Gravity::STANDARD,
+    ) else {
+        return 0.0;
+    };
+    let params = GovernorParams::demo(&ride, black_box(50.0), black_box(0.05));
+    let Ok(mut governor) = SwingGovernor::new(&ride, &params) else {
+        return 0.0;
+    };
+    let _ = governor.confirm_rest(black_box(0.0));
+    let _ = governor.correct(black_box(0.01), black_box(0.0));
+    let decision = governor.govern(&GovernorInput {
+        clamped_request_rad_s: black_box(1.0),
+        commanded: Setpoint::at_target(AngularSpeed::from_rad_per_s(black_box(0.2))),
+        measured_rad_s: black_box(Some(0.2)),
+        dt_s: black_box(0.01),
+        stopping: black_box(false),
+    });
+    decision.admitted_rad_s + governor.certificate().slack_per_s
+}
+
 /// Exercises the fixed-point tick path: ramp, player, clamp and comparisons.
 #[cfg(feature = "fixed")]
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn fixed_point() -> f32 {
     use swingdrive::fixed_point::{
         following_error_exceeds, FixedCeiling, FixedRamp, FixedSpeedLimit, Speed,
@@ -165,6 +202,7 @@ fn fixed_point() -> f32 {
 }
 
 #[cfg(not(feature = "fixed"))]
+#[inline(never)] // one frame at a time: the M0 has 16 KiB of RAM
 fn fixed_point() -> f32 {
     0.0
 }
@@ -201,6 +239,7 @@ fn interlock() -> f32 {
 fn main() -> ! {
     let total = black_box(steady_state())
         + black_box(ramp())
+        + black_box(swing_governor())
         + black_box(fixed_point())
         + black_box(interlock());
     say(format_args!("no-panic image runs: {}", total.is_finite()));
