@@ -90,6 +90,7 @@ fn ramp_at(target: f32, ticks: u32) -> SpeedRamp {
 }
 
 /// Ramp step (target unchanged) and re-planning ticks, typical and worst.
+#[inline(never)] // own stack frame: the microbit (Cortex-M0) has 16 KiB of RAM
 fn ramp_counts() {
     let dt = black_box(1.0e-3_f32);
     // 0 → 8 rad/s: segments of 0.5 s (jerk), 15.5 s (hold), 0.5 s (jerk).
@@ -171,6 +172,7 @@ fn ramp_counts() {
 /// Swing governor (src/protection): one 100 Hz tick in which the estimator
 /// steps its three length models and the governor decides, on the study's
 /// chain ride (r0 4 m, L 6.5 m ± 2 %, 50° certified), part-way up a ramp.
+#[inline(never)] // own stack frame: the microbit (Cortex-M0) has 16 KiB of RAM
 fn swing_governor() {
     use swingdrive::{
         GovernorInput, GovernorParams, RampLimits, RequestGovernor, Reverse, SpeedRamp,
@@ -233,6 +235,7 @@ fn panic(_: &core::panic::PanicInfo<'_>) -> ! {
 
 /// Interlock ticks on the demo ride of the fault scenarios (both speed
 /// channels and the angle sensor fitted), with an ideal drive.
+#[inline(never)] // own stack frame: the microbit (Cortex-M0) has 16 KiB of RAM
 fn interlock_counts() {
     use swingdrive::{Interlock, SafetyParams, Sample, TickInputs};
     use swingdrive_firmware::interlock_scenario::scenario_config;
@@ -307,6 +310,7 @@ fn interlock_counts() {
 /// The fixed-point tick: ramp step, ceiling clamp of the request and the
 /// interlock's comparisons (overspeed, following error), typical and worst.
 #[cfg(feature = "fixed")]
+#[inline(never)] // own stack frame: the microbit (Cortex-M0) has 16 KiB of RAM
 fn fixed_counts() {
     use swingdrive::fixed_point::{FixedMonitor, FixedRamp, Speed};
     let Ok(limits) = RampLimits::new(black_box(0.5), black_box(1.0), black_box(1.0)) else {
