@@ -37,7 +37,7 @@ use toml::Spanned;
 
 use crate::error::ParamError;
 use crate::geometry::RideGeometry;
-use crate::ride_file::{Locator, RideFileError};
+use crate::ride_file::{limit, Locator, RideFileError};
 use crate::units::{Angle, AngularSpeed};
 
 /// Most steps a program file may hold (the firmware's program capacity is its
@@ -157,18 +157,6 @@ struct RawStep {
     answer_after_s: Option<Spanned<f64>>,
 }
 
-fn finite_positive(name: &'static str, v: f64, max: f64) -> Result<f64, ParamError> {
-    if !v.is_finite() {
-        Err(ParamError::NonFinite(name))
-    } else if v <= 0.0 {
-        Err(ParamError::NotPositive(name))
-    } else if v > max {
-        Err(ParamError::OutOfRange(name))
-    } else {
-        Ok(v)
-    }
-}
-
 impl ProgramFile {
     /// Reads and checks a program file (syntax, kinds, keys, ranges; the
     /// check against the ride's parameter set comes when the program is
@@ -267,12 +255,13 @@ impl ProgramFile {
                 }
                 "swing_free" => {
                     reject("answer_after_s", &s.answer_after_s)?;
-                    let duration_s = match &s.duration_s {
-                        Some(v) => Some(at.value(&table, v, "(0, 600] s", |x| {
-                            finite_positive("duration_s", x, 600.0)
-                        })?),
-                        None => None,
-                    };
+                    let duration_s =
+                        match &s.duration_s {
+                            Some(v) => Some(at.value(&table, v, "(0, 600] s", |x| {
+                                limit("duration_s", x, 600.0)
+                            })?),
+                            None => None,
+                        };
                     StepAction::SwingFree {
                         target: target()?,
                         duration_s,
@@ -292,7 +281,7 @@ impl ProgramFile {
                     };
                     StepAction::Hold {
                         duration_s: at.value(&table, v, "(0, 86400] s", |x| {
-                            finite_positive("duration_s", x, 86_400.0)
+                            limit("duration_s", x, 86_400.0)
                         })?,
                     }
                 }
@@ -303,7 +292,7 @@ impl ProgramFile {
                     reject("duration_s", &s.duration_s)?;
                     let answer_after_s = match &s.answer_after_s {
                         Some(v) => Some(at.value(&table, v, "(0, 86400] s", |x| {
-                            finite_positive("answer_after_s", x, 86_400.0)
+                            limit("answer_after_s", x, 86_400.0)
                         })?),
                         None => None,
                     };

@@ -347,8 +347,8 @@ impl Locator<'_> {
     }
 }
 
-/// Checks a limit: finite and in (0, max].
-fn limit(name: &'static str, value: f64, max: f64) -> Result<f64, ParamError> {
+/// Checks a limit: finite and in (0, max] (also the program file's durations).
+pub(crate) fn limit(name: &'static str, value: f64, max: f64) -> Result<f64, ParamError> {
     if !value.is_finite() {
         Err(ParamError::NonFinite(name))
     } else if value <= 0.0 {
