@@ -65,7 +65,7 @@ fn print_cycle(out: &CycleOutcome, program: &ProgramFile) {
         program.steps.len(),
         out.peak_angle_deg,
         out.peak_load_factor,
-        out.restricted_s
+        out.limiting_s
     );
 }
 

@@ -1119,7 +1119,7 @@ fn cycle_command(args: &CycleArgs) -> Result<Report, Failure> {
     }
     text.push_str(&format!(
         "\npeak angle {:.2} deg (certified {certified:.1}), peak load factor {:.3}, the interlock limited the request for {:.1} s\n",
-        out.peak_angle_deg, out.peak_load_factor, out.restricted_s
+        out.peak_angle_deg, out.peak_load_factor, out.limiting_s
     ));
     if let Some(cause) = out.trip {
         text.push_str(&format!("tripped: {cause:?}; the ride was stopped\n"));
@@ -1138,7 +1138,7 @@ fn cycle_command(args: &CycleArgs) -> Result<Report, Failure> {
         "peak_angle_deg": out.peak_angle_deg,
         "certified_angle_deg": certified,
         "peak_load_factor": out.peak_load_factor,
-        "restricted_s": out.restricted_s,
+        "limiting_s": out.limiting_s,
         "steps": out.steps,
         "events": out.events,
         "csv_file": args.csv.as_ref().map(|p| p.display().to_string()),

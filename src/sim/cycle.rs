@@ -174,7 +174,7 @@ pub struct CycleOutcome {
     pub peak_load_factor: f64,
     /// Time the interlock was limiting the request (the governor or the
     /// ceiling held it back), s.
-    pub restricted_s: f64,
+    pub limiting_s: f64,
 }
 
 /// The request governor of a host run: none, or the swing governor.
@@ -338,7 +338,7 @@ pub fn run_cycle(
         max_time_s: options.max_time_s,
     };
     let mut wait_started: Option<(usize, f64)> = None;
-    let mut restricted_s = 0.0;
+    let mut limiting_s = 0.0;
     let mut seen_events = 0_u32;
     let mut events = Vec::new();
     let mut last_percent = u32::MAX;
@@ -384,7 +384,7 @@ pub fn run_cycle(
                 dt,
             );
             if status.output.state == crate::interlock::InterlockState::Limiting {
-                restricted_s += f64::from(dt);
+                limiting_s += f64::from(dt);
             }
             // New events, in order (the record keeps the last 64; the loop
             // reads them every tick, so none is missed).
@@ -449,7 +449,7 @@ pub fn run_cycle(
             .fold(0.0, f64::max)
             .to_degrees(),
         peak_load_factor: seat.iter().map(|o| o.link.load_factor).fold(0.0, f64::max),
-        restricted_s,
+        limiting_s,
         trace,
         seat,
     })
