@@ -141,7 +141,7 @@ def render(rows):
             out += ["", f"## `{file}`", ""]
             if file_cited:
                 out += ["File header cites: " + "; ".join(file_cited) + ".", ""]
-            out += ["| test | line | sources |", "|---|---:|---|"]
+            out += ["| test | sources |", "|---|---|"]
         if cited:
             counts["cited"] += 1
         elif file_cited:
@@ -149,7 +149,7 @@ def render(rows):
         else:
             counts["none"] += 1
         src = "; ".join(cited) if cited else "—"
-        out.append(f"| `{name}` | {line} | {src} |")
+        out.append(f"| `{name}` | {src} |")
     total = sum(counts.values())
     summary = [
         "",
