@@ -169,13 +169,23 @@ impl GearRatio {
     /// Largest accepted ratio; beyond it a typo is more likely than a gearbox.
     pub const MAX: f32 = 10_000.0;
 
-    /// A ratio in (0, [`GearRatio::MAX`]] motor turns per shaft turn.
+    /// Smallest accepted ratio (the shaft 1,000 times faster than the motor);
+    /// it keeps shaft speeds computed from motor speeds finite (a subnormal
+    /// ratio would turn them into infinity).
+    pub const MIN: f32 = 1.0e-3;
+
+    /// A ratio in [[`GearRatio::MIN`], [`GearRatio::MAX`]] motor turns per
+    /// shaft turn.
     ///
     /// # Errors
-    /// [`ParamError`] naming `gear_ratio` when not finite, not positive or too large.
+    /// [`ParamError`] naming `gear_ratio` when not finite, not positive, or
+    /// outside that range.
     pub fn new(motor_per_shaft: f32) -> Result<Self, ParamError> {
-        check_positive("gear_ratio", motor_per_shaft, Self::MAX)
-            .map(|motor_per_shaft| Self { motor_per_shaft })
+        let r = check_positive("gear_ratio", motor_per_shaft, Self::MAX)?;
+        if r < Self::MIN {
+            return Err(ParamError::OutOfRange("gear_ratio"));
+        }
+        Ok(Self { motor_per_shaft: r })
     }
 
     /// Motor turns per shaft turn.
