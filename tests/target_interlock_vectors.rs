@@ -23,8 +23,10 @@
     dead_code
 )]
 
+#[path = "common/firmware_vectors.rs"]
+mod firmware_vectors;
+
 use std::fmt::Write as _;
-use std::path::Path;
 
 include!("../firmware/src/interlock_scenario.rs");
 
@@ -74,14 +76,9 @@ fn generate() -> String {
 
 #[test]
 fn firmware_interlock_vectors_are_current() {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("firmware/src/interlock_vectors.rs");
-    let fresh = generate();
-    if std::env::var_os("UPDATE_TARGET_VECTORS").is_some() {
-        std::fs::write(&path, &fresh).unwrap();
-    }
-    let committed = std::fs::read_to_string(&path).unwrap_or_default();
-    assert!(
-        committed == fresh,
-        "firmware/src/interlock_vectors.rs is out of date: run UPDATE_TARGET_VECTORS=1 cargo test --features std --test target_interlock_vectors"
+    firmware_vectors::keep_current(
+        "interlock_vectors.rs",
+        "target_interlock_vectors",
+        &generate(),
     );
 }

@@ -17,8 +17,10 @@
     clippy::indexing_slicing
 )]
 
+#[path = "common/firmware_vectors.rs"]
+mod firmware_vectors;
+
 use std::fmt::Write as _;
-use std::path::Path;
 
 use swingdrive::reference::steady::Ride;
 use swingdrive::{Angle, AngularSpeed, Gravity, RideGeometry, Suspension, SwingModes};
@@ -116,14 +118,5 @@ fn generate() -> String {
 
 #[test]
 fn firmware_vectors_are_current() {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("firmware/src/vectors.rs");
-    let fresh = generate();
-    if std::env::var_os("UPDATE_TARGET_VECTORS").is_some() {
-        std::fs::write(&path, &fresh).unwrap();
-    }
-    let committed = std::fs::read_to_string(&path).unwrap_or_default();
-    assert!(
-        committed == fresh,
-        "firmware/src/vectors.rs is out of date: run UPDATE_TARGET_VECTORS=1 cargo test --features std --test target_vectors"
-    );
+    firmware_vectors::keep_current("vectors.rs", "target_vectors", &generate());
 }
