@@ -37,28 +37,7 @@ use swingdrive::{AngularSpeed, SwingModes};
 const RPM: f64 = 60.0 / std::f64::consts::TAU;
 
 fn print_cycle(out: &CycleOutcome, program: &ProgramFile) {
-    println!("  step  what                                  time s  peak deg  residual deg  load");
-    for (i, s) in out.steps.iter().enumerate() {
-        match &s.report {
-            Some(r) => println!(
-                "  {:>4}  {:<36}  {:>6.1}  {:>8.2}  {:>12}  {:>4.3}",
-                i + 1,
-                s.title,
-                r.duration_s,
-                r.peak_angle_deg,
-                r.residual_swing_deg
-                    .map_or_else(|| "-".to_owned(), |d| format!("{d:.2}")),
-                r.peak_load_factor
-            ),
-            None => println!("  {:>4}  {:<36}  not reached", i + 1, s.title),
-        }
-    }
-    if !out.events.is_empty() {
-        println!("  interlock events:");
-        for e in &out.events {
-            println!("    {:>7.2} s  {}", e.time_s, e.what);
-        }
-    }
+    print!("{}", out.step_table("  "));
     println!(
         "  {} of {} steps done; peak angle {:.2}°, peak load factor {:.3}, interlock limiting {:.1} s",
         out.steps.iter().filter(|s| s.report.is_some()).count(),

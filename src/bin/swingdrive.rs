@@ -1089,34 +1089,7 @@ fn cycle_command(args: &CycleArgs) -> Result<Report, Failure> {
             "off"
         }
     );
-    text.push_str(
-        "step  line  what                                  time s  peak deg  residual deg  load\n",
-    );
-    for (i, s) in out.steps.iter().enumerate() {
-        match &s.report {
-            Some(r) => text.push_str(&format!(
-                "{:>4}  {:>4}  {:<36}  {:>6.1}  {:>8.2}  {:>12}  {:>4.3}\n",
-                i + 1,
-                s.line,
-                s.title,
-                r.duration_s,
-                r.peak_angle_deg,
-                r.residual_swing_deg
-                    .map_or_else(|| "-".to_owned(), |d| format!("{d:.2}")),
-                r.peak_load_factor
-            )),
-            None => text.push_str(&format!(
-                "{:>4}  {:>4}  {:<36}  not reached\n",
-                i + 1,
-                s.line,
-                s.title
-            )),
-        }
-    }
-    text.push_str("\nevents\n");
-    for e in &out.events {
-        text.push_str(&format!("  {:>8.2} s  {}\n", e.time_s, e.what));
-    }
+    text.push_str(&out.step_table(""));
     text.push_str(&format!(
         "\npeak angle {:.2} deg (certified {certified:.1}), peak load factor {:.3}, the interlock limited the request for {:.1} s\n",
         out.peak_angle_deg, out.peak_load_factor, out.limiting_s

@@ -177,10 +177,43 @@ pub struct CycleOutcome {
     pub limiting_s: f64,
 }
 
+/// A program step with its target resolved (and its table designed).
+enum Prepared {
+    Ramp(f64),
+    Table(Vec<u8>),
+    Hold(f64),
+    Confirm,
+    Stop,
+}
+
 /// The request governor of a host run: none, or the swing governor.
 enum HostGovernor {
     None(PassThrough),
     Swing(Box<SwingGovernor>),
+}
+
+impl HostGovernor {
+    /// No governor, or the swing governor for `ride` with the seats at rest
+    /// (the simulated seats start hanging still).
+    fn new(ride: &RideFile, params: Option<GovernorParams>) -> Result<Self, CycleError> {
+        Ok(match params {
+            None => Self::None(PassThrough),
+            Some(g) => {
+                let mut swing =
+                    SwingGovernor::new(&ride.geometry, &g).map_err(CycleError::Governor)?;
+                swing.confirm_rest(0.0);
+                Self::Swing(Box::new(swing))
+            }
+        })
+    }
+}
+
+/// Largest angle of the link from vertical over a run, °.
+fn peak_angle_deg(seat: &[Observation]) -> f64 {
+    seat.iter()
+        .map(|o| o.state.angle_from_vertical_rad())
+        .fold(0.0, f64::max)
+        .to_degrees()
 }
 
 impl RequestGovernor for HostGovernor {
@@ -189,6 +222,43 @@ impl RequestGovernor for HostGovernor {
             Self::None(g) => g.govern(input),
             Self::Swing(g) => g.govern(input),
         }
+    }
+}
+
+impl CycleOutcome {
+    /// The per-step table and the interlock's events as text, each line
+    /// starting with `indent` (what `swingdrive cycle` and the demo print).
+    #[must_use]
+    pub fn step_table(&self, indent: &str) -> String {
+        let mut text = format!(
+            "{indent}step  line  what                                  time s  peak deg  residual deg  load\n"
+        );
+        for (i, s) in self.steps.iter().enumerate() {
+            let row = match &s.report {
+                Some(r) => format!(
+                    "{:>6.1}  {:>8.2}  {:>12}  {:>4.3}",
+                    r.duration_s,
+                    r.peak_angle_deg,
+                    r.residual_swing_deg
+                        .map_or_else(|| "-".to_owned(), |d| format!("{d:.2}")),
+                    r.peak_load_factor
+                ),
+                None => "not reached".to_owned(),
+            };
+            text.push_str(&format!(
+                "{indent}{:>4}  {:>4}  {:<36}  {row}\n",
+                i + 1,
+                s.line,
+                s.title
+            ));
+        }
+        if !self.events.is_empty() {
+            text.push_str(&format!("{indent}interlock events:\n"));
+            for e in &self.events {
+                text.push_str(&format!("{indent}  {:>8.2} s  {}\n", e.time_s, e.what));
+            }
+        }
+        text
     }
 }
 
@@ -219,8 +289,9 @@ pub fn run_cycle(
     let params = ride.interlock.ok_or(CycleError::NoInterlock)?;
     let drive = ride.drive.ok_or(CycleError::NoDrive)?;
 
-    // Targets, designed tables and confirmation answers, step by step.
-    let mut tables: Vec<Option<Vec<u8>>> = Vec::with_capacity(program.steps.len());
+    // Targets, designed tables and confirmation answers, step by step (each
+    // resolved once, here).
+    let mut prepared: Vec<Prepared> = Vec::with_capacity(program.steps.len());
     let mut answers: Vec<Option<f64>> = Vec::with_capacity(program.steps.len());
     let mut speed = 0.0_f64;
     for (i, s) in program.steps.iter().enumerate() {
@@ -233,11 +304,16 @@ pub fn run_cycle(
                     error,
                 })
         };
-        let mut table = None;
         let mut answer = None;
-        match s.action {
-            StepAction::Ramp(t) => speed = target(&t)?,
-            StepAction::Stop => speed = 0.0,
+        prepared.push(match s.action {
+            StepAction::Ramp(t) => {
+                speed = target(&t)?;
+                Prepared::Ramp(speed)
+            }
+            StepAction::Stop => {
+                speed = 0.0;
+                Prepared::Stop
+            }
             StepAction::SwingFree {
                 target: t,
                 duration_s,
@@ -258,41 +334,32 @@ pub fn run_cycle(
                     }
                 })?;
                 let speeds: Vec<f64> = d.samples.iter().map(|&(_, w)| w).collect();
-                table = Some(encode(&speeds, d.table_period_s, params.stamp()).map_err(
+                speed = to;
+                Prepared::Table(encode(&speeds, d.table_period_s, params.stamp()).map_err(
                     |error| CycleError::Target {
                         step,
                         line: s.line,
                         error,
                     },
-                )?);
-                speed = to;
+                )?)
             }
             StepAction::Confirm { answer_after_s } => {
                 answer = answer_after_s.or(options.auto_confirm.then_some(AUTO_CONFIRM_AFTER_S));
                 if answer.is_none() {
                     return Err(CycleError::Unanswered { step, line: s.line });
                 }
+                Prepared::Confirm
             }
-            StepAction::Hold { .. } => {}
-        }
-        tables.push(table);
+            StepAction::Hold { duration_s } => Prepared::Hold(duration_s),
+        });
         answers.push(answer);
     }
     let mut steps: Vec<Step<'_>> = Vec::with_capacity(program.steps.len());
-    for (i, (s, table)) in program.steps.iter().zip(&tables).enumerate() {
+    for (i, (s, p)) in program.steps.iter().zip(&prepared).enumerate() {
         #[allow(clippy::cast_possible_truncation)]
-        steps.push(match (s.action, table) {
-            (StepAction::Ramp(t), _) => {
-                let w = t
-                    .speed_rad_s(&ride.geometry)
-                    .map_err(|error| CycleError::Target {
-                        step: i + 1,
-                        line: s.line,
-                        error,
-                    })?;
-                Step::RampToSpeed(AngularSpeed::from_rad_per_s(w as f32))
-            }
-            (StepAction::SwingFree { .. }, Some(bytes)) => {
+        steps.push(match p {
+            Prepared::Ramp(w) => Step::RampToSpeed(AngularSpeed::from_rad_per_s(*w as f32)),
+            Prepared::Table(bytes) => {
                 Step::Play(ProfileTable::parse(bytes, params.stamp()).map_err(|_| {
                     CycleError::Target {
                         step: i + 1,
@@ -301,11 +368,11 @@ pub fn run_cycle(
                     }
                 })?)
             }
-            (StepAction::Hold { duration_s }, _) => Step::Hold {
-                duration_s: duration_s as f32,
+            Prepared::Hold(d) => Step::Hold {
+                duration_s: *d as f32,
             },
-            (StepAction::Confirm { .. }, _) => Step::WaitForConfirmation,
-            (StepAction::Stop | StepAction::SwingFree { .. }, _) => Step::Stop,
+            Prepared::Confirm => Step::WaitForConfirmation,
+            Prepared::Stop => Step::Stop,
         });
     }
     let checked: Program<'_, HOST_PROGRAM_STEPS> = Program::new(&steps, &ride.geometry, &params)
@@ -317,15 +384,7 @@ pub fn run_cycle(
             CycleError::Program { error, line }
         })?;
 
-    let mut governor = match options.governor {
-        None => HostGovernor::None(PassThrough),
-        Some(g) => {
-            let mut swing = SwingGovernor::new(&ride.geometry, &g).map_err(CycleError::Governor)?;
-            // The simulated seats start hanging still.
-            swing.confirm_rest(0.0);
-            HostGovernor::Swing(Box::new(swing))
-        }
-    };
+    let mut governor = HostGovernor::new(ride, options.governor)?;
     let mut interlock: Interlock<64> = Interlock::new(params);
     let mut runner = CycleRunner::new(&checked);
     let c = *params.config();
@@ -443,11 +502,7 @@ pub fn run_cycle(
         events,
         finished: last == Some(CycleState::Finished),
         trip: interlock.cause(),
-        peak_angle_deg: seat
-            .iter()
-            .map(|o| o.state.angle_from_vertical_rad())
-            .fold(0.0, f64::max)
-            .to_degrees(),
+        peak_angle_deg: peak_angle_deg(&seat),
         peak_load_factor: seat.iter().map(|o| o.link.load_factor).fold(0.0, f64::max),
         limiting_s,
         trace,
@@ -632,14 +687,7 @@ pub fn run_requests(
 ) -> Result<RequestRun, CycleError> {
     let params = ride.interlock.ok_or(CycleError::NoInterlock)?;
     let drive = ride.drive.ok_or(CycleError::NoDrive)?;
-    let mut governor = match governor {
-        None => HostGovernor::None(PassThrough),
-        Some(g) => {
-            let mut swing = SwingGovernor::new(&ride.geometry, &g).map_err(CycleError::Governor)?;
-            swing.confirm_rest(0.0);
-            HostGovernor::Swing(Box::new(swing))
-        }
-    };
+    let mut governor = HostGovernor::new(ride, governor)?;
     let mut interlock: Interlock<64> = Interlock::new(params);
     let c = *params.config();
     let setup = LoopSetup {
@@ -671,11 +719,7 @@ pub fn run_requests(
     );
     let seat = seat_on_trace(&ride.seat, &trace, SEAT_SAMPLE_S).map_err(CycleError::Sim)?;
     Ok(RequestRun {
-        peak_angle_deg: seat
-            .iter()
-            .map(|o| o.state.angle_from_vertical_rad())
-            .fold(0.0, f64::max)
-            .to_degrees(),
+        peak_angle_deg: peak_angle_deg(&seat),
         trip: interlock.cause(),
         trace,
         seat,
