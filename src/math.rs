@@ -53,21 +53,25 @@ const FOUR_OVER_PI: f32 = 1.273_239_5;
 const PI_4_A: f32 = 0.785_156_25;
 const PI_4_B: f32 = 2.418_756_5e-4;
 const PI_4_C: f32 = 3.774_895e-8;
-/// Beyond this magnitude the three-part reduction loses accuracy; fall back
-/// to libm (never reached by swing angles or phases of a ride).
-const REDUCTION_LIMIT: f32 = 8192.0;
+/// Beyond this magnitude the three-part reduction loses accuracy. No angle
+/// of this crate comes near it (link angles stay within ±π/2); larger
+/// arguments give NaN rather than pulling `libm`'s large-argument reduction
+/// (its double-precision kernels, about 2 KB of flash) into every image.
+pub const REDUCTION_LIMIT: f32 = 8192.0;
 
 /// Sine and cosine of `x` (radians) in f32 arithmetic only.
 ///
 /// Cephes single-precision kernels (S. L. Moshier, Cephes Math Library,
 /// `sinf.c`/`cosf.c`): Cody–Waite reduction to [−π/4, π/4] and minimax
 /// polynomials. Error ≤ 2 ulp plus 6e-8 absolute for |x| ≤ 8192 (tested
-/// against f64 in `tests`); larger or non-finite `x` goes to `libm`.
+/// against f64 in `tests`). Larger or non-finite `x` gives (NaN, NaN): a
+/// defined reaction that every caller's finiteness check catches.
 #[inline]
 pub fn sin_cos(x: f32) -> (f32, f32) {
     let ax = libm::fabsf(x);
-    if ax.is_nan() || ax > REDUCTION_LIMIT {
-        return libm::sincosf(x);
+    // Also false for NaN.
+    if !(ax <= REDUCTION_LIMIT) {
+        return (f32::NAN, f32::NAN);
     }
     // Octant, rounded up to even so that the remainder lies in [−π/4, π/4].
     // ax ≤ 8192 keeps j ≤ 10431, exact in u32 and f32.
@@ -125,9 +129,19 @@ mod tests {
         assert_eq!(sin_cos(0.0), (0.0, 1.0));
         let (s, c) = sin_cos(f32::NAN);
         assert!(s.is_nan() && c.is_nan());
-        let (s, c) = sin_cos(1.0e6);
-        assert_eq!((s, c), libm::sincosf(1.0e6));
-        assert!(sin_cos(f32::INFINITY).0.is_nan());
+        // Largest argument still reduced, and the first one refused.
+        let (s, c) = sin_cos(REDUCTION_LIMIT);
+        let (ws, wc) = (
+            f64::from(REDUCTION_LIMIT).sin(),
+            f64::from(REDUCTION_LIMIT).cos(),
+        );
+        assert!((f64::from(s) - ws).abs() <= 2.0 * ulp(ws) + 6e-8);
+        assert!((f64::from(c) - wc).abs() <= 2.0 * ulp(wc) + 6e-8);
+        let above = f32::from_bits(REDUCTION_LIMIT.to_bits() + 1);
+        for x in [above, -above, 1.0e6, f32::INFINITY, f32::NEG_INFINITY] {
+            let (s, c) = sin_cos(x);
+            assert!(s.is_nan() && c.is_nan(), "x = {x}");
+        }
     }
 
     #[test]

@@ -113,6 +113,25 @@ impl RideGeometry {
         )))
     }
 
+    /// Shaft speed at which the steady load factor (link tension over the
+    /// seat's weight, n = 1/cos φ) is `load_factor`; n = 1 gives the speed
+    /// below which the seats hang straight (see [`RideGeometry::speed_for_angle`]).
+    ///
+    /// Closed form from cos φ = 1/n and sin φ = √((1 − cos φ)(1 + cos φ)): no
+    /// inverse cosine, so that a parameter check on the target needs no
+    /// `libm::acosf`.
+    ///
+    /// # Errors
+    /// [`ParamError`] naming `load_factor` when not finite or below 1.
+    pub fn speed_for_load_factor(&self, load_factor: f32) -> Result<AngularSpeed, ParamError> {
+        let n = check_range("load_factor", load_factor, 1.0, f32::MAX)?;
+        let cos = 1.0 / n;
+        let sin = crate::math::sqrt((1.0 - cos) * (1.0 + cos));
+        Ok(AngularSpeed::from_rad_per_s(crate::math::sqrt(
+            self.speed_squared_from(sin, cos),
+        )))
+    }
+
     /// The full steady state at `angle` (see [`RideGeometry::speed_for_angle`]).
     ///
     /// # Errors
@@ -164,6 +183,11 @@ impl RideGeometry {
     /// ω² at angle φ (φ checked to lie in [0, π/2)).
     fn speed_squared_at(&self, phi: f32) -> f32 {
         let (s, c) = crate::math::sin_cos(phi);
+        self.speed_squared_from(s, c)
+    }
+
+    /// ω² at the angle with sine `s` and cosine `c` (s ≥ 0, c > 0).
+    fn speed_squared_from(&self, s: f32, c: f32) -> f32 {
         let g = self.gravity().mps2();
         let r0 = self.hub_offset_m();
         let l = self.length_m();

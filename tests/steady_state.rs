@@ -70,6 +70,15 @@ fn hand_calculation_offset_ride_30_degrees() {
     );
     let back = r.angle_for_speed(s.speed).unwrap();
     assert!((back.deg() - 30.0).abs() < 1e-4);
+    // The same point from its load factor 1/cos 30° = 1.1547005 (closed form, no acos).
+    let by_load = r.speed_for_load_factor(1.154_700_5).unwrap();
+    assert_rel(by_load.rad_per_s(), 1.014_26, 5e-6, "speed for load factor");
+    // n = 1: the seats hang straight; with r0 > 0 that is only at standstill.
+    assert_eq!(r.speed_for_load_factor(1.0).unwrap().rad_per_s(), 0.0);
+    for bad in [f32::NAN, f32::INFINITY, 0.99, -2.0] {
+        let err = r.speed_for_load_factor(bad).unwrap_err();
+        assert!(format!("{err}").contains("load_factor"), "{bad}: {err}");
+    }
 }
 
 #[test]

@@ -69,10 +69,10 @@ impl SpeedCeiling {
             .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
             .rad_per_s();
         let load_factor_limit_rad_s = match c.max_load_factor {
-            // n = 1/cos φ  ⇒  φ = acos(1/n); once, at construction.
+            // n = 1/cos φ; once, at construction.
             Some(n) => Some(
                 worst
-                    .speed_for_angle(Angle::from_rad(libm::acosf(1.0 / n)))
+                    .speed_for_load_factor(n)
                     .map_err(|_| ParamError::OutOfRange("max_load_factor"))?
                     .rad_per_s(),
             ),

@@ -15,7 +15,11 @@ use super::ceiling::SpeedCeiling;
 
 /// CRC-32/ISO-HDLC (the common "CRC-32": polynomial 0x04C11DB7, reflected,
 /// initial value and final XOR 0xFFFFFFFF), shared by every interlock block.
-pub(crate) const CRC32: crc::Crc<u32> = crc::Crc::<u32>::new(&crc::CRC_32_ISO_HDLC);
+/// Bit by bit, without the 1 KiB lookup table: the blocks are short (92 and
+/// 16 bytes) and checked at start-up or in the background, where flash
+/// counts for more than the few thousand instructions.
+pub(crate) const CRC32: crc::Crc<u32, crc::NoTable> =
+    crc::Crc::<u32, crc::NoTable>::new(&crc::CRC_32_ISO_HDLC);
 
 /// The values of a safety parameter set, as written in the ride file's
 /// `[interlock]` table (the field names are its keys).
