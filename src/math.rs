@@ -69,8 +69,7 @@ pub const REDUCTION_LIMIT: f32 = 8192.0;
 #[inline]
 pub fn sin_cos(x: f32) -> (f32, f32) {
     let ax = libm::fabsf(x);
-    // Also false for NaN.
-    if !(ax <= REDUCTION_LIMIT) {
+    if ax.is_nan() || ax > REDUCTION_LIMIT {
         return (f32::NAN, f32::NAN);
     }
     // Octant, rounded up to even so that the remainder lies in [−π/4, π/4].
