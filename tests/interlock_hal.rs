@@ -13,7 +13,9 @@ use embedded_hal_mock::eh1::digital::{Mock as PinMock, State, Transaction as Pin
 use embedded_hal_mock::eh1::pwm::{Mock as PwmMock, Transaction as Pwm};
 use embedded_hal_mock::eh1::MockError;
 use swingdrive::interlock::{HalIo, PinFault, ReferenceMode, Sample, SpeedReference};
-use swingdrive::ramp::Reverse;
+
+#[path = "common/demo_rides.rs"]
+mod demo_rides;
 use swingdrive::{
     Interlock, InterlockState, PassThrough, SafetyConfig, SafetyParams, TickInputs, TripCause,
 };
@@ -25,31 +27,10 @@ const MAX_DUTY: u16 = 1000;
 fn interlock() -> Interlock<8> {
     Interlock::new(
         SafetyParams::new(SafetyConfig {
-            certified_angle_deg: 40.0,
-            max_load_factor: None,
-            mechanical_max_rad_s: 2.0,
-            hub_offset_max_m: 3.6,
-            length_max_m: 6.2,
-            gravity_min_mps2: 9.78,
-            speed_margin_rad_s: 0.02,
-            max_acceleration_rad_s2: 0.5,
-            max_deceleration_rad_s2: 0.6,
-            max_jerk_rad_s3: 2.0,
-            overspeed_tolerance_rad_s: 0.05,
-            following_tolerance_rad_s: 0.08,
-            channel_tolerance_rad_s: 0.04,
-            sensor_max_rad_s: 5.0,
-            standstill_rad_s: 0.01,
             tick_s: DT,
-            overrun_tick_s: 0.02,
-            stop_time_margin_s: 1.0,
-            brake_delay_s: 20.0,
-            debounce_ticks: 5,
-            stale_ticks: 8,
-            standstill_ticks: 20,
-            reverse: Reverse::Forbidden,
             second_channel: false,
             angle_sensor: false,
+            ..demo_rides::forty_degree_ride()
         })
         .unwrap(),
     )

@@ -13,37 +13,21 @@
 use swingdrive::design::table::encode;
 use swingdrive::interlock::{Sample, DEFAULT_EVENT_CAPACITY};
 use swingdrive::player::{ProfilePlayer, ProfileTable, TableError};
-use swingdrive::ramp::Reverse;
 use swingdrive::{Interlock, SafetyConfig, SafetyParams, TickInputs};
 
-/// Demo data (invented ride): r0 3.6 m, L 6.2 m, certified 40°, 10 ms ticks.
+#[path = "common/demo_rides.rs"]
+mod demo_rides;
+
+/// Demo data (invented ride): the 40° ride with the certified limits of a
+/// slow chain ride (0.1 rad/s², 0.12 rad/s² down, 0.05 rad/s³), no angle
+/// sensor.
 fn config() -> SafetyConfig {
     SafetyConfig {
-        certified_angle_deg: 40.0,
-        max_load_factor: None,
-        mechanical_max_rad_s: 2.0,
-        hub_offset_max_m: 3.6,
-        length_max_m: 6.2,
-        gravity_min_mps2: 9.78,
-        speed_margin_rad_s: 0.02,
         max_acceleration_rad_s2: 0.1,
         max_deceleration_rad_s2: 0.12,
         max_jerk_rad_s3: 0.05,
-        overspeed_tolerance_rad_s: 0.05,
-        following_tolerance_rad_s: 0.08,
-        channel_tolerance_rad_s: 0.04,
-        sensor_max_rad_s: 5.0,
-        standstill_rad_s: 0.01,
-        tick_s: 0.01,
-        overrun_tick_s: 0.02,
-        stop_time_margin_s: 1.0,
-        brake_delay_s: 20.0,
-        debounce_ticks: 5,
-        stale_ticks: 8,
-        standstill_ticks: 20,
-        reverse: Reverse::Forbidden,
-        second_channel: true,
         angle_sensor: false,
+        ..demo_rides::forty_degree_ride()
     }
 }
 

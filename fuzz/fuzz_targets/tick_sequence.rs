@@ -11,36 +11,13 @@ use swingdrive::interlock::Sample;
 use swingdrive::ramp::Reverse;
 use swingdrive::{Interlock, InterlockState, SafetyConfig, SafetyParams, TickInputs};
 
+#[path = "../../tests/common/demo_rides.rs"]
+mod demo_rides;
+
 const TICK: f32 = 0.01;
 
 fn config(reverse: Reverse, second: bool, angle: bool) -> SafetyConfig {
-    SafetyConfig {
-        certified_angle_deg: 45.0,
-        max_load_factor: None,
-        mechanical_max_rad_s: 3.0,
-        hub_offset_max_m: 2.0,
-        length_max_m: 4.0,
-        gravity_min_mps2: 9.78,
-        speed_margin_rad_s: 0.05,
-        max_acceleration_rad_s2: 2.0,
-        max_deceleration_rad_s2: 3.0,
-        max_jerk_rad_s3: 20.0,
-        overspeed_tolerance_rad_s: 0.1,
-        following_tolerance_rad_s: 0.2,
-        channel_tolerance_rad_s: 0.1,
-        sensor_max_rad_s: 10.0,
-        standstill_rad_s: 0.02,
-        tick_s: TICK,
-        overrun_tick_s: 0.02,
-        stop_time_margin_s: 0.5,
-        brake_delay_s: 5.0,
-        debounce_ticks: 3,
-        stale_ticks: 4,
-        standstill_ticks: 10,
-        reverse,
-        second_channel: second,
-        angle_sensor: angle,
-    }
+    demo_rides::brisk_ride(TICK, reverse, second, angle)
 }
 
 /// A value from a byte pair: mostly the command plus an offset, sometimes wild.
