@@ -109,7 +109,7 @@ fn main() -> Result<(), Box<dyn Error>> {
     let normal = run_cycle(&ride, &program, &options, None)?;
     print_cycle(&normal, &program);
     println!(
-        "  the governor slows the swing-free tables (its admitted target moves at most 0.02 rad/s², docs/dynamic_protection.md),\n  so they no longer leave the seats still: the designer does not yet respect the governor's certificate"
+        "  with the governor the swing-free tables are designed within its rate (0.45 × 0.02 rad/s², design::limits_for_governor):\n  they take longer but pass it unaltered (\"limiting s\" 0 on their rows) and still leave the seats still;\n  the time-optimal ramps are held back by the governor (docs/dynamic_protection.md)"
     );
     write_outputs(
         &dir,

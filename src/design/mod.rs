@@ -752,6 +752,44 @@ impl Problem {
     }
 }
 
+/// Share of the swing governor's admitted-target rate that a table designed
+/// to pass the governor may use for its acceleration (see
+/// [`limits_for_governor`]).
+pub const GOVERNOR_RATE_SHARE: f64 = 0.45;
+
+/// The limits within which a designed table passes the swing governor
+/// unaltered, as far as the governor's explicit rate goes: the ride's limits
+/// with the acceleration and deceleration capped at
+/// [`GOVERNOR_RATE_SHARE`] × `target_rate_rad_s2` (the governor's
+/// `target_rate_rad_s2`) and the jerk at the interlock ramp's
+/// `ramp_jerk_rad_s3`.
+///
+/// Why the share: the ride program plays a table ahead of itself by
+/// a·|a|/(2j) (j the ramp's jerk) so that the ramp's output follows it; the
+/// request then changes at a·(1 + |da/dt|/j) ≤ 2a while the table's jerk is
+/// at most j. With a ≤ 0.45 × rate the request moves at most 0.9 × rate, so
+/// each of the governor's decisions can admit it as it is (one decision moves
+/// the admitted target by up to rate × period), with a tenth left for
+/// rounding. Hand calculation, common practice.
+///
+/// The governor's certificate (the swing room at each speed) is the other
+/// half of passing unaltered; a slow table leaves little swing, and the
+/// ride-cycle simulation reports, step by step, any time the interlock spent
+/// limiting (`swingdrive cycle`, [`crate::sim::cycle`]).
+#[must_use]
+pub fn limits_for_governor(
+    limits: &RideLimits,
+    target_rate_rad_s2: f64,
+    ramp_jerk_rad_s3: f64,
+) -> RideLimits {
+    let cap = GOVERNOR_RATE_SHARE * target_rate_rad_s2;
+    RideLimits {
+        max_accel_rad_s2: limits.max_accel_rad_s2.min(cap),
+        max_decel_rad_s2: limits.max_decel_rad_s2.min(cap),
+        max_jerk_rad_s3: limits.max_jerk_rad_s3.min(ramp_jerk_rad_s3),
+    }
+}
+
 /// The shortest jerk-limited duration of the speed change (time-optimal
 /// ramp, Biagiotti & Melchiorri 2008, §3.4), s.
 #[must_use]

@@ -223,6 +223,10 @@ pub struct StepReport {
     pub residual_swing_deg: Option<f64>,
     /// Largest load factor during the step.
     pub peak_load_factor: f64,
+    /// Time during the step the interlock was limiting the request (the
+    /// ceiling or the request governor held it back), s: zero when the step's
+    /// requests passed unaltered.
+    pub limiting_s: f64,
 }
 
 /// Splits a loop trace and the seat simulated on it into per-step reports.
@@ -247,6 +251,20 @@ pub fn step_reports(
             .iter()
             .filter(|o| o.time_s >= start && o.time_s <= end);
         let (mut peak, mut load) = (0.0_f64, 0.0_f64);
+        // Each tick counts with its own period (the time since the previous one).
+        let mut limiting = 0.0_f64;
+        let mut previous = start;
+        for t in trace
+            .get(..=i)
+            .unwrap_or(&[])
+            .iter()
+            .filter(|t| t.time_s > start)
+        {
+            if t.state == InterlockState::Limiting {
+                limiting += t.time_s - previous;
+            }
+            previous = t.time_s;
+        }
         for o in during {
             peak = peak.max(o.state.angle_from_vertical_rad());
             load = load.max(o.link.load_factor);
@@ -293,6 +311,7 @@ pub fn step_reports(
             peak_angle_deg: peak.to_degrees(),
             residual_swing_deg: residual,
             peak_load_factor: load,
+            limiting_s: limiting,
         });
         start = end;
     }

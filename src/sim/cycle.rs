@@ -7,7 +7,8 @@
 use std::fmt;
 
 use crate::design::{
-    design, table::encode, DesignError, DesignOptions, DesignRequest, DurationChoice,
+    design, limits_for_governor, table::encode, DesignError, DesignOptions, DesignRequest,
+    DurationChoice, MAX_DURATION_S,
 };
 use crate::interlock::{Event, EventKind, Interlock, TripCause};
 use crate::player::ProfileTable;
@@ -231,17 +232,18 @@ impl CycleOutcome {
     #[must_use]
     pub fn step_table(&self, indent: &str) -> String {
         let mut text = format!(
-            "{indent}step  line  what                                  time s  peak deg  residual deg  load\n"
+            "{indent}step  line  what                                  time s  peak deg  residual deg  load   limiting s\n"
         );
         for (i, s) in self.steps.iter().enumerate() {
             let row = match &s.report {
                 Some(r) => format!(
-                    "{:>6.1}  {:>8.2}  {:>12}  {:>4.3}",
+                    "{:>6.1}  {:>8.2}  {:>12}  {:>4.3}  {:>10.2}",
                     r.duration_s,
                     r.peak_angle_deg,
                     r.residual_swing_deg
                         .map_or_else(|| "-".to_owned(), |d| format!("{d:.2}")),
-                    r.peak_load_factor
+                    r.peak_load_factor,
+                    r.limiting_s
                 ),
                 None => "not reached".to_owned(),
             };
@@ -319,19 +321,34 @@ pub fn run_cycle(
                 duration_s,
             } => {
                 let to = target(&t)?;
+                // With the swing governor the table is designed within the
+                // governor's rate, so that it passes unaltered (slower
+                // tables need the longer durations).
+                let (limits, design_options) = match options.governor {
+                    Some(g) => (
+                        limits_for_governor(
+                            &ride.limits,
+                            f64::from(g.target_rate_rad_s2),
+                            f64::from(params.ramp_limits().max_jerk_rad_s3()),
+                        ),
+                        DesignOptions {
+                            max_duration_s: MAX_DURATION_S,
+                            ..DesignOptions::default()
+                        },
+                    ),
+                    None => (ride.limits, DesignOptions::default()),
+                };
                 let request = DesignRequest {
                     seat: ride.seat,
-                    limits: ride.limits,
+                    limits,
                     from_speed_rad_s: speed,
                     to_speed_rad_s: to,
                     duration: duration_s.map_or(DurationChoice::Shortest, DurationChoice::Fixed),
                 };
-                let d = design(&request, &DesignOptions::default()).map_err(|error| {
-                    CycleError::Design {
-                        step,
-                        line: s.line,
-                        error,
-                    }
+                let d = design(&request, &design_options).map_err(|error| CycleError::Design {
+                    step,
+                    line: s.line,
+                    error,
                 })?;
                 let speeds: Vec<f64> = d.samples.iter().map(|&(_, w)| w).collect();
                 speed = to;
