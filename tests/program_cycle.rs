@@ -13,41 +13,30 @@
 use swingdrive::design::table::encode;
 use swingdrive::interlock::Sample;
 use swingdrive::program::{CycleRunner, CycleState, Program, ProgramError, Step, StepProblem};
-use swingdrive::ramp::Reverse;
 use swingdrive::{
     Angle, AngularSpeed, Gravity, Interlock, InterlockState, PassThrough, ProfileTable,
     RideGeometry, SafetyConfig, SafetyParams, Suspension, TickInputs,
 };
+
+#[path = "common/demo_rides.rs"]
+mod demo_rides;
 
 /// Demo data (invented ride): nominal r0 3.4 m, L 5.8 m; band up to 3.5 m and
 /// 6.1 m; certified 45°, 10 ms ticks.
 fn params() -> SafetyParams {
     SafetyParams::new(SafetyConfig {
         certified_angle_deg: 45.0,
-        max_load_factor: None,
-        mechanical_max_rad_s: 2.0,
         hub_offset_max_m: 3.5,
         length_max_m: 6.1,
-        gravity_min_mps2: 9.78,
-        speed_margin_rad_s: 0.02,
         max_acceleration_rad_s2: 0.10,
         max_deceleration_rad_s2: 0.12,
         max_jerk_rad_s3: 0.05,
-        overspeed_tolerance_rad_s: 0.05,
-        following_tolerance_rad_s: 0.08,
-        channel_tolerance_rad_s: 0.04,
-        sensor_max_rad_s: 5.0,
-        standstill_rad_s: 0.01,
-        tick_s: 0.01,
-        overrun_tick_s: 0.02,
         stop_time_margin_s: 2.0,
         brake_delay_s: 60.0,
-        debounce_ticks: 5,
-        stale_ticks: 8,
         standstill_ticks: 50,
-        reverse: Reverse::Forbidden,
         second_channel: false,
         angle_sensor: false,
+        ..demo_rides::forty_degree_ride()
     })
     .unwrap()
 }
