@@ -16,9 +16,42 @@ pub const SECONDS_PER_QUANTUM: f32 = 1.0 / QUANTA_PER_SECOND;
 
 /// Seconds to quanta, rounded to nearest (ties up). Negative or NaN give 0;
 /// values from 2⁶³ quanta (2²⁷ s) on saturate there.
+///
+/// Two implementations with identical results (both tested against the float
+/// formula on the host; the integer one also runs in the firmware checks): on
+/// cores with a one-instruction conversion between `f64` and 64-bit integers
+/// (x86-64, AArch64) the float formula itself, elsewhere (32-bit Arm, where the
+/// conversion is a library routine) integer code on the bits.
 #[must_use]
 #[inline]
 pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
+    #[cfg(any(target_arch = "x86_64", target_arch = "aarch64"))]
+    {
+        quanta_from_s_float(seconds)
+    }
+    #[cfg(not(any(target_arch = "x86_64", target_arch = "aarch64")))]
+    {
+        quanta_from_s_bits(seconds)
+    }
+}
+
+/// [`quanta_from_s`] by the float formula: `seconds·2³⁶` is exact in `f64`
+/// (a 24-bit significand times a power of two), adding ½ is exact below 2⁵²
+/// and a tie to even above it (where the value is already an even integer),
+/// and the `as` cast truncates toward zero (saturating; NaN gives 0), after
+/// which negative values are raised to 0.
+#[cfg(any(test, target_arch = "x86_64", target_arch = "aarch64"))]
+#[inline]
+fn quanta_from_s_float(seconds: f32) -> u64 {
+    // `as i64` saturates at 2⁶³ − 1 and gives 0 for NaN.
+    let q = (f64::from(seconds) * 68_719_476_736.0 + 0.5) as i64;
+    q.max(0) as u64
+}
+
+/// [`quanta_from_s`] in integer arithmetic on the bits.
+#[cfg(any(test, not(any(target_arch = "x86_64", target_arch = "aarch64"))))]
+#[inline]
+fn quanta_from_s_bits(seconds: f32) -> u64 {
     // From the bits, in integer arithmetic: the float-to-64-bit conversion is a
     // library routine on 32-bit Arm, this is a shift. `seconds = m·2^(e−150)`
     // with the 24-bit significand `m`, so `seconds·2³⁶ = m·2^(e−114)`.
@@ -59,9 +92,30 @@ pub(crate) fn quanta_from_s(seconds: f32) -> u64 {
 
 /// Quanta to seconds (rounded to `f32`, relative error ≤ 2⁻²⁴; used only for
 /// in-segment evaluation and for reporting).
+///
+/// As for [`quanta_from_s`], two implementations with identical results: the
+/// hardware's 64-bit conversion where there is one, integer code elsewhere.
 #[must_use]
 #[inline]
 pub(crate) fn s_from_quanta(quanta: u64) -> f32 {
+    #[cfg(any(target_arch = "x86_64", target_arch = "aarch64"))]
+    {
+        // Correctly rounded by the conversion instruction; the scaling by a
+        // power of two is exact.
+        #[allow(clippy::cast_possible_wrap, clippy::cast_precision_loss)]
+        let s = quanta.min(i64::MAX as u64) as i64 as f32;
+        s * SECONDS_PER_QUANTUM
+    }
+    #[cfg(not(any(target_arch = "x86_64", target_arch = "aarch64")))]
+    {
+        s_from_quanta_bits(quanta)
+    }
+}
+
+/// [`s_from_quanta`] without a 64-bit conversion.
+#[cfg(any(test, not(any(target_arch = "x86_64", target_arch = "aarch64"))))]
+#[inline]
+fn s_from_quanta_bits(quanta: u64) -> f32 {
     // Correctly rounded without the 64-bit conversion routine: below 2³² one
     // hardware conversion; above, shift into 32 bits and keep the dropped bits as
     // a sticky bit far below the rounding position (bit 7 of 32 significant
@@ -149,54 +203,74 @@ mod tests {
         q as f32 * SECONDS_PER_QUANTUM
     }
 
+    /// Both implementations of each conversion (the host uses the float one, the
+    /// 32-bit Arm targets the integer one).
+    const TO_QUANTA: [(&str, fn(f32) -> u64); 2] =
+        [("bits", quanta_from_s_bits), ("float", quanta_from_s_float)];
+    const TO_SECONDS: [(&str, fn(u64) -> f32); 2] =
+        [("bits", s_from_quanta_bits), ("dispatch", s_from_quanta)];
+
     #[test]
     fn integer_conversions_equal_the_float_formulas() {
-        // Every 997th f32 bit pattern (both signs, NaN, infinities, subnormals).
-        let mut bits: u32 = 0;
-        loop {
-            let x = f32::from_bits(bits);
-            assert_eq!(quanta_from_s(x), quanta_by_float(x), "{x:e} ({bits:#x})");
-            match bits.checked_add(997) {
-                Some(b) => bits = b,
-                None => break,
+        for (name, to_quanta) in TO_QUANTA {
+            // Every 997th f32 bit pattern (both signs, NaN, infinities, subnormals).
+            let mut bits: u32 = 0;
+            loop {
+                let x = f32::from_bits(bits);
+                assert_eq!(to_quanta(x), quanta_by_float(x), "{name} {x:e} ({bits:#x})");
+                match bits.checked_add(997) {
+                    Some(b) => bits = b,
+                    None => break,
+                }
+            }
+            for x in [
+                0.0,
+                -0.0,
+                f32::MIN_POSITIVE,
+                1e-3,
+                0.5,
+                1.0,
+                1e8,
+                f32::MAX,
+                f32::INFINITY,
+                f32::NEG_INFINITY,
+                f32::NAN,
+                // Around 2⁻³⁷ s (half a quantum) and 2²⁷ s (2⁶³ quanta).
+                f32::from_bits(0x2d00_0000),
+                f32::from_bits(0x2cff_ffff),
+                f32::from_bits(0x2d00_0001),
+                f32::from_bits(0x4d00_0000),
+                f32::from_bits(0x4cff_ffff),
+            ] {
+                assert_eq!(to_quanta(x), quanta_by_float(x), "{name} {x:e}");
             }
         }
-        for x in [
-            0.0,
-            -0.0,
-            f32::MIN_POSITIVE,
-            1e-3,
-            0.5,
-            1.0,
-            1e8,
-            f32::MAX,
-            f32::INFINITY,
-        ] {
-            assert_eq!(quanta_from_s(x), quanta_by_float(x), "{x:e}");
-        }
-        // Quanta: every power of two and its neighbours, plus a scattered sweep.
-        for k in 0..64 {
-            let p = 1_u64 << k;
-            for q in [p - 1, p, p + 1, p + p / 3, p | 0x55] {
+        assert_eq!(quanta_from_s(0.001), quanta_by_float(0.001));
+        for (name, to_seconds) in TO_SECONDS {
+            // Quanta: every power of two and its neighbours, plus a scattered sweep.
+            for k in 0..64 {
+                let p = 1_u64 << k;
+                for q in [p - 1, p, p + 1, p + p / 3, p | 0x55] {
+                    assert_eq!(
+                        to_seconds(q).to_bits(),
+                        seconds_by_float(q).to_bits(),
+                        "{name} {q}"
+                    );
+                }
+            }
+            let mut q: u64 = 1;
+            for _ in 0..200_000 {
                 assert_eq!(
-                    s_from_quanta(q).to_bits(),
+                    to_seconds(q).to_bits(),
                     seconds_by_float(q).to_bits(),
-                    "{q}"
+                    "{name} {q}"
                 );
+                q = q
+                    .wrapping_mul(6_364_136_223_846_793_005)
+                    .wrapping_add(1_442_695_040_888_963_407);
             }
+            assert_eq!(to_seconds(u64::MAX), seconds_by_float(u64::MAX), "{name}");
         }
-        let mut q: u64 = 1;
-        for _ in 0..200_000 {
-            assert_eq!(
-                s_from_quanta(q).to_bits(),
-                seconds_by_float(q).to_bits(),
-                "{q}"
-            );
-            q = q
-                .wrapping_mul(6_364_136_223_846_793_005)
-                .wrapping_add(1_442_695_040_888_963_407);
-        }
-        assert_eq!(s_from_quanta(u64::MAX), seconds_by_float(u64::MAX));
     }
 
     #[test]

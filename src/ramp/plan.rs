@@ -239,15 +239,16 @@ fn clamp_anchor(x: f32, lo: f32, p: f32, q: f32) -> (f32, f32) {
 /// no IEEE maxNum instruction before Armv8.
 #[inline]
 fn between(x: f32, p: f32, q: f32) -> f32 {
-    let (lo, hi) = if p <= q { (p, q) } else { (q, p) };
-    if x >= lo {
-        if x <= hi {
-            x
-        } else {
-            hi
-        }
+    // Written as four selects (no nested branches), which compile to
+    // conditional moves or min/max instructions.
+    let ordered = p <= q;
+    let lo = if ordered { p } else { q };
+    let hi = if ordered { q } else { p };
+    let x = if x >= lo { x } else { lo };
+    if x <= hi {
+        x
     } else {
-        lo
+        hi
     }
 }
 
@@ -361,18 +362,6 @@ impl Plan {
         build(self, limits, reverse, Anchor::exact(v0, a0), vt);
         self.target_clamped = clamped;
         Ok(())
-    }
-
-    /// Empties the plan for a new build toward `target` (the segment storage
-    /// is left as it is: only `len` segments are ever read).
-    fn reset(&mut self, target: f32) {
-        self.start_lo = (0.0, 0.0);
-        self.len = 0;
-        self.target = target;
-        self.target_clamped = false;
-        self.overshoot = false;
-        self.braked = false;
-        self.jerk_raised = false;
     }
 
     /// The segments, in order (at most [`MAX_SEGMENTS`]).
@@ -509,7 +498,31 @@ impl Plan {
 
 /// Checks a start state and target for [`Plan::new`] and [`Plan::replan`]:
 /// `(speed, acceleration, target after the reverse policy, clamped)`.
+#[inline]
 fn checked_start(
+    reverse: Reverse,
+    speed: AngularSpeed,
+    acceleration_rad_s2: f32,
+    target: AngularSpeed,
+) -> Result<(f32, f32, f32, bool), ParamError> {
+    let (v0, a0, vt) = (speed.rad_per_s(), acceleration_rad_s2, target.rad_per_s());
+    // One comparison per value on the common path (each is false for NaN and
+    // infinities too); which check failed is found off it.
+    if v0.abs() <= MAX_SPEED_RAD_S
+        && a0.abs() <= MAX_INITIAL_ACCELERATION_RAD_S2
+        && vt.abs() <= MAX_SPEED_RAD_S
+        && !(reverse == Reverse::Forbidden && v0 < 0.0)
+    {
+        let (vt, clamped) = admit_target(reverse, vt);
+        return Ok((v0, a0, vt, clamped));
+    }
+    refused_start(reverse, speed, acceleration_rad_s2, target)
+}
+
+/// Why [`checked_start`] refused its inputs (the checks in order: speed,
+/// reverse policy, acceleration, target).
+#[cold]
+fn refused_start(
     reverse: Reverse,
     speed: AngularSpeed,
     acceleration_rad_s2: f32,
@@ -563,9 +576,13 @@ struct Builder<'p> {
 }
 
 impl<'p> Builder<'p> {
+    /// Empties `plan` for a build toward `target` (the flags are set by the
+    /// caller when the build is done; the segment storage is left as it is:
+    /// only `len` segments are ever read).
     #[inline]
     fn new(plan: &'p mut Plan, start: Anchor, target: f32) -> Self {
-        plan.reset(target);
+        plan.len = 0;
+        plan.target = target;
         // The start state's rounding errors belong to the first segment.
         plan.start_lo = (start.v_lo, start.a_lo);
         Self {
@@ -702,11 +719,11 @@ pub(crate) fn build(
     };
     let j = k.j;
     let mut b = Builder::new(plan, start, vt);
-    let mut overshoot = false;
     let mut jerk_raised = false;
 
     // Step 1: acceleration pointing away from the target, or toward it so
     // strongly that the target would be passed: bring it to zero at once.
+    let mut overshoot = false;
     if a0 != 0.0 {
         let dir = a0.signum();
         let v_stop = v0 + a0 * a0.abs() * k.hij;
@@ -763,14 +780,15 @@ pub(crate) fn build(
             max: limits.max_deceleration_rad_s2(),
             inv: inv_down,
         };
-        if w0 >= 0.0 {
-            let p = three_phase(w0, al0, wt, up, k);
-            emit_three_phase(&mut b, s, &p, wt, k);
-        } else if wt <= 0.0 {
-            let p = three_phase(w0, al0, wt, down, k);
-            emit_three_phase(&mut b, s, &p, wt, k);
-        } else {
+        if w0 < 0.0 && wt > 0.0 && up.max != down.max {
             crossing(&mut b, s, w0, al0, wt, down, up, k);
+        } else {
+            // The speed's magnitude only rises (w0 >= 0), only falls (wt <= 0),
+            // or it passes zero under equal limits, where the crossing profiles
+            // all come down to this one (see `crossing`, case (a)).
+            let lim = if w0 >= 0.0 { up } else { down };
+            let p = three_phase(w0, al0, wt, lim, k);
+            emit_three_phase(&mut b, s, &p, wt, k);
         }
     }
 
@@ -779,6 +797,7 @@ pub(crate) fn build(
         // never worse than the limits allow.
         conservative(b.plan, limits, start, vt);
     }
+    plan.target_clamped = false;
     plan.overshoot = overshoot;
     plan.braked = braked;
     plan.jerk_raised = jerk_raised;
@@ -789,13 +808,14 @@ pub(crate) fn build(
 /// the time-optimal one of the crossing profiles derived in `docs/ramp.md`.
 #[allow(clippy::too_many_arguments)]
 fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post: Lim, k: Kin) {
-    // Acceleration at the crossing if it kept rising at +j from the start.
-    let al_c = crate::math::sqrt(al0 * al0 - 2.0 * k.j * w0);
+    // Acceleration at the crossing if it kept rising at +j from the start
+    // (computed only where a case needs it).
+    let al_c = || crate::math::sqrt(al0 * al0 - 2.0 * k.j * w0);
     if post.max >= pre.max {
         // (a) The profile under the looser limit everywhere stays within `pre`
         // before the crossing.
         let loose = three_phase(w0, al0, wt, post, k);
-        if loose.peak <= pre.max || al_c <= pre.max {
+        if loose.peak <= pre.max || al_c() <= pre.max {
             emit_three_phase(b, s, &loose, wt, k);
             return;
         }
@@ -823,7 +843,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
         // (b') Under `post` everywhere, the crossing falls in the first ramp.
         if al0 <= post.max {
             let tight = three_phase(w0, al0, wt, post, k);
-            if al_c <= tight.peak {
+            if al_c() <= tight.peak {
                 emit_three_phase(b, s, &tight, wt, k);
                 return;
             }
