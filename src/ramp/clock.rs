@@ -56,6 +56,12 @@ fn quanta_from_s_bits(seconds: f32) -> u64 {
     // library routine on 32-bit Arm, this is a shift. `seconds = m·2^(e−150)`
     // with the 24-bit significand `m`, so `seconds·2³⁶ = m·2^(e−114)`.
     let bits = seconds.to_bits();
+    // The common case, positive and normal with 2⁻¹³ s ≤ seconds < 2²⁷ s: the
+    // 24-bit significand shifted left by 0 to 39 places, exact.
+    if bits.wrapping_sub(0x3900_0000) < 0x4d00_0000 - 0x3900_0000 {
+        let m = u64::from(bits & 0x007f_ffff | 0x0080_0000);
+        return m << ((bits >> 23) - 114);
+    }
     if bits >= 0x8000_0000 || bits == 0 {
         // Negative (also −0.0 and negative NaN) or +0.0.
         return 0;

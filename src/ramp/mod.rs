@@ -155,9 +155,15 @@ impl SpeedRamp {
             return Err(refused_tick(dt_s));
         }
         let quanta = self.tick.quanta(dt_s);
-        let (segment, into) = self
-            .plan
-            .advance(self.segment, self.into.saturating_add(quanta));
+        // `into` stays below its segment's duration (< 2⁶³ quanta) and a tick
+        // adds at most 2³⁶ (1 s), so the sum cannot wrap.
+        let into = self.into.wrapping_add(quanta);
+        // The common tick stays inside the current segment.
+        if let Some(setpoint) = self.plan.within(self.segment, into) {
+            self.into = into;
+            return Ok(setpoint);
+        }
+        let (segment, into) = self.plan.advance(self.segment, into);
         self.segment = segment;
         self.into = into;
         Ok(self.setpoint())
