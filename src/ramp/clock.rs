@@ -209,12 +209,15 @@ mod tests {
         q as f32 * SECONDS_PER_QUANTUM
     }
 
+    /// A named conversion from seconds to quanta.
+    type ToQuanta = (&'static str, fn(f32) -> u64);
+    /// A named conversion from quanta to seconds.
+    type ToSeconds = (&'static str, fn(u64) -> f32);
+
     /// Both implementations of each conversion (the host uses the float one, the
     /// 32-bit Arm targets the integer one).
-    const TO_QUANTA: [(&str, fn(f32) -> u64); 2] =
-        [("bits", quanta_from_s_bits), ("float", quanta_from_s_float)];
-    const TO_SECONDS: [(&str, fn(u64) -> f32); 2] =
-        [("bits", s_from_quanta_bits), ("dispatch", s_from_quanta)];
+    const TO_QUANTA: [ToQuanta; 2] = [("bits", quanta_from_s_bits), ("float", quanta_from_s_float)];
+    const TO_SECONDS: [ToSeconds; 2] = [("bits", s_from_quanta_bits), ("dispatch", s_from_quanta)];
 
     #[test]
     fn integer_conversions_equal_the_float_formulas() {
