@@ -244,7 +244,11 @@ mod tests {
                 f32::INFINITY,
                 f32::NEG_INFINITY,
                 f32::NAN,
-                // Around 2⁻³⁷ s (half a quantum) and 2²⁷ s (2⁶³ quanta).
+                // Around 2⁻³⁷ s (half a quantum), 2⁻¹³ s (the first whole quantum
+                // count, where the integer fast path starts) and 2²⁷ s (2⁶³ quanta,
+                // where it ends); hand calculation from the f32 bit layout.
+                f32::from_bits(0x3900_0000),
+                f32::from_bits(0x38ff_ffff),
                 f32::from_bits(0x2d00_0000),
                 f32::from_bits(0x2cff_ffff),
                 f32::from_bits(0x2d00_0001),
