@@ -150,18 +150,25 @@ pub(crate) struct TickCache {
 }
 
 impl TickCache {
-    /// An empty cache (+0.0 s is never a valid tick, so it never hits).
-    pub(crate) const EMPTY: Self = Self { bits: 0, quanta: 0 };
+    /// A cache that holds the common 1 ms tick. It only ever holds periods the
+    /// ramp has accepted, so a hit needs no range check either.
+    pub(crate) const INITIAL: Self = Self {
+        bits: 0.001_f32.to_bits(),
+        // 0.001_f32 = 8,589,935 · 2⁻³³ exactly, so 2³⁶ times it is 8 · 8,589,935.
+        quanta: 68_719_480,
+    };
 
-    /// `quanta_from_s(seconds)`, from the cache when `seconds` is the same as last
-    /// time (same bits).
+    /// The cached quanta if `seconds` is, bit for bit, the cached period.
     #[inline]
-    pub(crate) fn quanta(&mut self, seconds: f32) -> u64 {
-        let bits = seconds.to_bits();
-        if bits != self.bits {
-            self.bits = bits;
-            self.quanta = quanta_from_s(seconds);
-        }
+    pub(crate) fn hit(&self, seconds: f32) -> Option<u64> {
+        (seconds.to_bits() == self.bits).then_some(self.quanta)
+    }
+
+    /// Caches `seconds`, a period the caller has checked, and returns it in quanta.
+    #[inline]
+    pub(crate) fn store(&mut self, seconds: f32) -> u64 {
+        self.bits = seconds.to_bits();
+        self.quanta = quanta_from_s(seconds);
         self.quanta
     }
 }
@@ -288,9 +295,21 @@ mod tests {
 
     #[test]
     fn tick_cache_converts_like_the_function() {
-        let mut cache = TickCache::EMPTY;
-        for dt in [1e-3_f32, 1e-3, 2.5e-4, 1e-3, 0.0, 0.0, 1.0] {
-            assert_eq!(cache.quanta(dt), quanta_from_s(dt));
+        // The initial entry: hand calculation, 0.001_f32 has significand
+        // 0x83126F = 8,589,935 and exponent −33.
+        assert_eq!(TickCache::INITIAL.hit(1e-3), Some(quanta_from_s(1e-3)));
+        let mut cache = TickCache::INITIAL;
+        for dt in [1e-3_f32, 1e-3, 2.5e-4, 2.5e-4, 1e-3, 1.0, 1.0] {
+            let q = match cache.hit(dt) {
+                Some(q) => q,
+                None => cache.store(dt),
+            };
+            assert_eq!(q, quanta_from_s(dt));
+            assert_eq!(cache.hit(dt), Some(q));
         }
+        // Only the cached period hits (also not +0.0, the old empty entry).
+        assert_eq!(cache.hit(0.0), None);
+        assert_eq!(cache.hit(-1.0), None);
+        assert_eq!(cache.hit(f32::NAN), None);
     }
 }

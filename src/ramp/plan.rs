@@ -128,6 +128,12 @@ impl Segment {
     #[must_use]
     #[inline]
     pub fn state_at(&self, quanta: u64) -> Setpoint {
+        self.state_inside(quanta.min(self.duration_quanta))
+    }
+
+    /// [`Segment::state_at`] for `quanta` not past the segment's end.
+    #[inline]
+    fn state_inside(&self, quanta: u64) -> Setpoint {
         let (speed, accel) = self.evaluate(quanta);
         Setpoint {
             speed: AngularSpeed::from_rad_per_s(between_selected(
@@ -141,13 +147,13 @@ impl Segment {
         }
     }
 
-    /// Speed and acceleration `quanta` into the segment, unclamped, from the
-    /// nearer anchor: the start in the first half, the end in the second. From
-    /// the end the approach to a target keeps its full relative precision
-    /// (near a stop the speed is `j·τ²/2`, not a difference of larger numbers).
+    /// Speed and acceleration `q` quanta into the segment (`q` not past its
+    /// end), unclamped, from the nearer anchor: the start in the first half,
+    /// the end in the second. From the end the approach to a target keeps its
+    /// full relative precision (near a stop the speed is `j·τ²/2`, not a
+    /// difference of larger numbers).
     #[inline]
-    fn evaluate(&self, quanta: u64) -> (f32, f32) {
-        let q = quanta.min(self.duration_quanta);
+    fn evaluate(&self, q: u64) -> (f32, f32) {
         if q <= self.duration_quanta / 2 {
             let t = s_from_quanta(q);
             (
@@ -497,7 +503,7 @@ impl Plan {
     #[inline]
     pub(crate) fn within(&self, index: usize, quanta: u64) -> Option<Setpoint> {
         match self.segments().get(index) {
-            Some(seg) if quanta < seg.duration_quanta => Some(seg.state_at(quanta)),
+            Some(seg) if quanta < seg.duration_quanta => Some(seg.state_inside(quanta)),
             _ => None,
         }
     }
