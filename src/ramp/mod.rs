@@ -111,7 +111,7 @@ impl SpeedRamp {
             plan: Plan::at_rest(0.0),
             segment: 0,
             into: 0,
-            tick: TickCache::EMPTY,
+            tick: TickCache::INITIAL,
         }
     }
 
@@ -149,15 +149,28 @@ impl SpeedRamp {
     /// and [`SpeedRamp::setpoint`] still returns the previous setpoint.
     #[inline]
     pub fn step(&mut self, dt_s: f32) -> Result<Setpoint, ParamError> {
-        // One comparison pair on the per-tick path (false for NaN too); the
+        // A controller ticks at a fixed period: a period equal, bit for bit, to
+        // the last accepted one needs neither the range check nor the
+        // conversion. Otherwise one comparison pair (false for NaN too); the
         // error is classified off it.
-        if !(dt_s > 0.0 && dt_s <= MAX_TICK_S) {
-            return Err(refused_tick(dt_s));
+        let quanta = match self.tick.hit(dt_s) {
+            Some(quanta) => quanta,
+            None => {
+                if !(dt_s > 0.0 && dt_s <= MAX_TICK_S) {
+                    return Err(refused_tick(dt_s));
+                }
+                self.tick.store(dt_s)
+            }
+        };
+        // `into` stays below its segment's duration (< 2⁶³ quanta) and a tick
+        // adds at most 2³⁶ (1 s), so the sum cannot wrap.
+        let into = self.into.wrapping_add(quanta);
+        // The common tick stays inside the current segment.
+        if let Some(setpoint) = self.plan.within(self.segment, into) {
+            self.into = into;
+            return Ok(setpoint);
         }
-        let quanta = self.tick.quanta(dt_s);
-        let (segment, into) = self
-            .plan
-            .advance(self.segment, self.into.saturating_add(quanta));
+        let (segment, into) = self.plan.advance(self.segment, into);
         self.segment = segment;
         self.into = into;
         Ok(self.setpoint())

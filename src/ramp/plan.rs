@@ -59,6 +59,9 @@ pub struct Segment {
     end_speed: f32,
     end_accel: f32,
     duration_quanta: u64,
+    /// The sign of `jerk` as a phase, kept so that a tick does not derive it
+    /// (it fits in the struct's padding).
+    phase: RampPhase,
 }
 
 impl Segment {
@@ -69,6 +72,7 @@ impl Segment {
         end_speed: 0.0,
         end_accel: 0.0,
         duration_quanta: 0,
+        phase: RampPhase::AccelerationConstant,
     };
 
     /// Speed at the segment's start (its anchor), rad/s.
@@ -116,36 +120,40 @@ impl Segment {
     /// The phase this segment's jerk stands for.
     #[must_use]
     #[inline]
-    pub fn phase(&self) -> RampPhase {
-        if self.jerk > 0.0 {
-            RampPhase::AccelerationIncreasing
-        } else if self.jerk < 0.0 {
-            RampPhase::AccelerationDecreasing
-        } else {
-            RampPhase::AccelerationConstant
-        }
+    pub const fn phase(&self) -> RampPhase {
+        self.phase
     }
 
     /// The state `quanta` after the segment's start (clamped to the segment).
     #[must_use]
     #[inline]
     pub fn state_at(&self, quanta: u64) -> Setpoint {
+        self.state_inside(quanta.min(self.duration_quanta))
+    }
+
+    /// [`Segment::state_at`] for `quanta` not past the segment's end.
+    #[inline]
+    fn state_inside(&self, quanta: u64) -> Setpoint {
         let (speed, accel) = self.evaluate(quanta);
         Setpoint {
-            speed: AngularSpeed::from_rad_per_s(between(speed, self.start_speed, self.end_speed)),
-            acceleration_rad_s2: between(accel, self.start_accel, self.end_accel),
+            speed: AngularSpeed::from_rad_per_s(between_selected(
+                speed,
+                self.start_speed,
+                self.end_speed,
+            )),
+            acceleration_rad_s2: between_selected(accel, self.start_accel, self.end_accel),
             jerk_rad_s3: self.jerk,
-            phase: self.phase(),
+            phase: self.phase,
         }
     }
 
-    /// Speed and acceleration `quanta` into the segment, unclamped, from the
-    /// nearer anchor: the start in the first half, the end in the second. From
-    /// the end the approach to a target keeps its full relative precision
-    /// (near a stop the speed is `j·τ²/2`, not a difference of larger numbers).
+    /// Speed and acceleration `q` quanta into the segment (`q` not past its
+    /// end), unclamped, from the nearer anchor: the start in the first half,
+    /// the end in the second. From the end the approach to a target keeps its
+    /// full relative precision (near a stop the speed is `j·τ²/2`, not a
+    /// difference of larger numbers).
     #[inline]
-    fn evaluate(&self, quanta: u64) -> (f32, f32) {
-        let q = quanta.min(self.duration_quanta);
+    fn evaluate(&self, q: u64) -> (f32, f32) {
         if q <= self.duration_quanta / 2 {
             let t = s_from_quanta(q);
             (
@@ -193,6 +201,18 @@ impl Segment {
     }
 }
 
+/// The phase a jerk stands for.
+#[inline]
+fn phase_of(jerk: f32) -> RampPhase {
+    if jerk > 0.0 {
+        RampPhase::AccelerationIncreasing
+    } else if jerk < 0.0 {
+        RampPhase::AccelerationDecreasing
+    } else {
+        RampPhase::AccelerationConstant
+    }
+}
+
 /// A state as rounded `f32` values plus their rounding errors.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) struct Anchor {
@@ -236,7 +256,8 @@ fn clamp_anchor(x: f32, lo: f32, p: f32, q: f32) -> (f32, f32) {
 /// `x` limited to the closed interval spanned by `p` and `q` (in either order);
 /// NaN gives the lower end, as `x.max(lo).min(hi)` would. Plain comparisons:
 /// `f32::max`/`min` are library calls (`fmaxf`/`fminf`) on Arm's FPU, which has
-/// no IEEE maxNum instruction before Armv8.
+/// no IEEE maxNum instruction before Armv8. Used in planning, where nested
+/// branches are cheapest on both the host and the Cortex-M4F.
 #[inline]
 fn between(x: f32, p: f32, q: f32) -> f32 {
     let (lo, hi) = if p <= q { (p, q) } else { (q, p) };
@@ -248,6 +269,22 @@ fn between(x: f32, p: f32, q: f32) -> f32 {
         }
     } else {
         lo
+    }
+}
+
+/// [`between`] written as four selects without nested branches, for the
+/// per-tick evaluation: on the host they compile to conditional moves or
+/// min/max instructions, about a fifth of a tick less than the branches.
+#[inline]
+fn between_selected(x: f32, p: f32, q: f32) -> f32 {
+    let ordered = p <= q;
+    let lo = if ordered { p } else { q };
+    let hi = if ordered { q } else { p };
+    let x = if x >= lo { x } else { lo };
+    if x <= hi {
+        x
+    } else {
+        hi
     }
 }
 
@@ -363,18 +400,6 @@ impl Plan {
         Ok(())
     }
 
-    /// Empties the plan for a new build toward `target` (the segment storage
-    /// is left as it is: only `len` segments are ever read).
-    fn reset(&mut self, target: f32) {
-        self.start_lo = (0.0, 0.0);
-        self.len = 0;
-        self.target = target;
-        self.target_clamped = false;
-        self.overshoot = false;
-        self.braked = false;
-        self.jerk_raised = false;
-    }
-
     /// The segments, in order (at most [`MAX_SEGMENTS`]).
     #[must_use]
     #[inline]
@@ -473,6 +498,16 @@ impl Plan {
         }
     }
 
+    /// The state `quanta` into segment `index` if that is still inside it (the
+    /// common tick: one segment lookup for the test and the evaluation).
+    #[inline]
+    pub(crate) fn within(&self, index: usize, quanta: u64) -> Option<Setpoint> {
+        match self.segments().get(index) {
+            Some(seg) if quanta < seg.duration_quanta => Some(seg.state_inside(quanta)),
+            _ => None,
+        }
+    }
+
     /// Moves a position (segment `index`, `into` quanta within it) on by
     /// `quanta`; returns the new position. Past the end: `(len, 0)`.
     #[inline]
@@ -509,7 +544,31 @@ impl Plan {
 
 /// Checks a start state and target for [`Plan::new`] and [`Plan::replan`]:
 /// `(speed, acceleration, target after the reverse policy, clamped)`.
+#[inline]
 fn checked_start(
+    reverse: Reverse,
+    speed: AngularSpeed,
+    acceleration_rad_s2: f32,
+    target: AngularSpeed,
+) -> Result<(f32, f32, f32, bool), ParamError> {
+    let (v0, a0, vt) = (speed.rad_per_s(), acceleration_rad_s2, target.rad_per_s());
+    // One comparison per value on the common path (each is false for NaN and
+    // infinities too); which check failed is found off it.
+    if v0.abs() <= MAX_SPEED_RAD_S
+        && a0.abs() <= MAX_INITIAL_ACCELERATION_RAD_S2
+        && vt.abs() <= MAX_SPEED_RAD_S
+        && !(reverse == Reverse::Forbidden && v0 < 0.0)
+    {
+        let (vt, clamped) = admit_target(reverse, vt);
+        return Ok((v0, a0, vt, clamped));
+    }
+    refused_start(reverse, speed, acceleration_rad_s2, target)
+}
+
+/// Why [`checked_start`] refused its inputs (the checks in order: speed,
+/// reverse policy, acceleration, target).
+#[cold]
+fn refused_start(
     reverse: Reverse,
     speed: AngularSpeed,
     acceleration_rad_s2: f32,
@@ -563,9 +622,13 @@ struct Builder<'p> {
 }
 
 impl<'p> Builder<'p> {
+    /// Empties `plan` for a build toward `target` (the flags are set by the
+    /// caller when the build is done; the segment storage is left as it is:
+    /// only `len` segments are ever read).
     #[inline]
     fn new(plan: &'p mut Plan, start: Anchor, target: f32) -> Self {
-        plan.reset(target);
+        plan.len = 0;
+        plan.target = target;
         // The start state's rounding errors belong to the first segment.
         plan.start_lo = (start.v_lo, start.a_lo);
         Self {
@@ -598,6 +661,7 @@ impl<'p> Builder<'p> {
                 end_speed: end_v,
                 end_accel: end_a,
                 duration_quanta: quanta,
+                phase: phase_of(jerk),
             };
             self.plan.len += 1;
         } else {
@@ -702,11 +766,11 @@ pub(crate) fn build(
     };
     let j = k.j;
     let mut b = Builder::new(plan, start, vt);
-    let mut overshoot = false;
     let mut jerk_raised = false;
 
     // Step 1: acceleration pointing away from the target, or toward it so
     // strongly that the target would be passed: bring it to zero at once.
+    let mut overshoot = false;
     if a0 != 0.0 {
         let dir = a0.signum();
         let v_stop = v0 + a0 * a0.abs() * k.hij;
@@ -763,14 +827,15 @@ pub(crate) fn build(
             max: limits.max_deceleration_rad_s2(),
             inv: inv_down,
         };
-        if w0 >= 0.0 {
-            let p = three_phase(w0, al0, wt, up, k);
-            emit_three_phase(&mut b, s, &p, wt, k);
-        } else if wt <= 0.0 {
-            let p = three_phase(w0, al0, wt, down, k);
-            emit_three_phase(&mut b, s, &p, wt, k);
-        } else {
+        if w0 < 0.0 && wt > 0.0 && up.max != down.max {
             crossing(&mut b, s, w0, al0, wt, down, up, k);
+        } else {
+            // The speed's magnitude only rises (w0 >= 0), only falls (wt <= 0),
+            // or it passes zero under equal limits, where the crossing profiles
+            // all come down to this one (see `crossing`, case (a)).
+            let lim = if w0 >= 0.0 { up } else { down };
+            let p = three_phase(w0, al0, wt, lim, k);
+            emit_three_phase(&mut b, s, &p, wt, k);
         }
     }
 
@@ -779,6 +844,7 @@ pub(crate) fn build(
         // never worse than the limits allow.
         conservative(b.plan, limits, start, vt);
     }
+    plan.target_clamped = false;
     plan.overshoot = overshoot;
     plan.braked = braked;
     plan.jerk_raised = jerk_raised;
@@ -789,13 +855,14 @@ pub(crate) fn build(
 /// the time-optimal one of the crossing profiles derived in `docs/ramp.md`.
 #[allow(clippy::too_many_arguments)]
 fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, post: Lim, k: Kin) {
-    // Acceleration at the crossing if it kept rising at +j from the start.
-    let al_c = crate::math::sqrt(al0 * al0 - 2.0 * k.j * w0);
+    // Acceleration at the crossing if it kept rising at +j from the start
+    // (computed only where a case needs it).
+    let al_c = || crate::math::sqrt(al0 * al0 - 2.0 * k.j * w0);
     if post.max >= pre.max {
         // (a) The profile under the looser limit everywhere stays within `pre`
         // before the crossing.
         let loose = three_phase(w0, al0, wt, post, k);
-        if loose.peak <= pre.max || al_c <= pre.max {
+        if loose.peak <= pre.max || al_c() <= pre.max {
             emit_three_phase(b, s, &loose, wt, k);
             return;
         }
@@ -823,7 +890,7 @@ fn crossing(b: &mut Builder<'_>, s: f32, w0: f32, al0: f32, wt: f32, pre: Lim, p
         // (b') Under `post` everywhere, the crossing falls in the first ramp.
         if al0 <= post.max {
             let tight = three_phase(w0, al0, wt, post, k);
-            if al_c <= tight.peak {
+            if al_c() <= tight.peak {
                 emit_three_phase(b, s, &tight, wt, k);
                 return;
             }
