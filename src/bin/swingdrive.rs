@@ -683,7 +683,7 @@ fn envelope_command(args: &EnvelopeArgs) -> Result<Report, Failure> {
         "governed_exceedances": r.governed_exceedances,
         "governed_faults": r.governed_faults,
         "note": if from_file.is_some() {
-            "governor parameters: swingdrive::sim::cycle::governor_for (from [interlock]: certified angle, length band, jerk; target rate 2 x the certified acceleration)"
+            "governor parameters: swingdrive::sim::cycle::governor_for (from [interlock]: certified angle, length band, jerk; target rate 0.02 rad/s² as in GovernorParams::demo)"
         } else {
             "governor parameters: GovernorParams::demo (length band +-2 %, speed uncertainty 0.005 rad/s)"
         },

@@ -12,8 +12,8 @@
 //! | speed out, limits, thresholds | [`Speed`] = I16F16 | ±32,768 rad/s | 2⁻¹⁶ ≈ 1.5·10⁻⁵ rad/s |
 //! | acceleration out | [`Accel`] = I16F16 | ±32,768 rad/s² | 2⁻¹⁶ rad/s² |
 //! | anchor speeds (internal) | I32F32 | ±2.1·10⁹ rad/s | 2⁻³² rad/s |
-//! | anchor accelerations, jerk/2 (internal) | I24F40 | ±8.4·10⁶ | 2⁻⁴⁰ |
-//! | time within a segment | integer quanta of 2⁻³⁶ s (I28F36 seconds) | 2²⁷ s | exact |
+//! | anchor accelerations (internal) | `i64` at a scale chosen per segment | — | ≤ A·2⁻⁶⁰ |
+//! | time within a segment | integer quanta of 2⁻³⁶ s (`u64`) | 8.5 years | exact |
 //!
 //! The ramp's limits (speed ≤ 10⁴ rad/s, acceleration ≤ 10⁴ rad/s² at the
 //! start of a plan, jerk ≤ 10⁵ rad/s³) fit every format. Per-tick increments
@@ -23,8 +23,9 @@
 //! time since the anchor kept exactly in integer quanta.
 //!
 //! Error bound against the exact polynomial of the `f32` plan: at most 2⁻¹⁷ rad/s
-//! from rounding the output to I16F16, plus less than 2⁻²⁶ rad/s inside (see the
-//! docs); against the f64 reference ramp add the `f32` plan's own bound
+//! from rounding the output to I16F16, plus the internal terms, below 2⁻²² rad/s
+//! for ride-like plans (`docs/fixed_point.md`); against the f64 reference ramp
+//! add the `f32` plan's own bound
 //! (16 f32 epsilons of the speed range, tests/ramp_reference.rs).
 //!
 //! A component of a drive controller, not a certified safety function.
