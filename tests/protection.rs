@@ -500,3 +500,36 @@ fn governor_faults_without_a_speed_and_admits_zero_while_stopping() {
     });
     assert_eq!(d.status, GovernorStatus::Fault);
 }
+
+#[test]
+fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
+    // The governor reads a down move's slack from a sparse table of the per-cell terms
+    // (constant time); it must give the cell-by-cell check of `down_slack`, up to f32
+    // rounding (1e-5), on pieces of every length, partly above the top too.
+    let mut seed = 0x9e37_79b9_u64;
+    let mut next = move || {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        (seed >> 11) as f32 / (1u64 << 53) as f32
+    };
+    for suspension in [Suspension::Chain, Suspension::Rod] {
+        let g = issue_ride(suspension);
+        let env = SwingEnvelope::new(&g, Angle::from_deg(50.0)).unwrap();
+        for u in [0.0_f32, 0.005, 0.02] {
+            let table = env.down_table(u);
+            for _ in 0..2000 {
+                let x = 1.05 * env.top_rad_s() * next();
+                let y = 1.05 * env.top_rad_s() * next();
+                let (lo, hi) = (x.min(y), x.max(y));
+                let start = 0.3 * next();
+                let slow = env.down_slack(start, lo, hi, u);
+                let fast = env.down_slack_with(&table, start, lo, hi);
+                assert!(
+                    (slow - fast).abs() <= 1e-5 * (1.0 + slow.abs()),
+                    "{suspension:?} u {u} [{lo}, {hi}] start {start}: {slow} vs {fast}"
+                );
+            }
+        }
+    }
+}

@@ -25,6 +25,7 @@
 
 use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
+use crate::math::{larger, smaller};
 use crate::seat_model::{SeatModel, SeatState};
 use crate::units::Angle;
 
@@ -68,6 +69,30 @@ pub struct SwingEnvelope {
     growth: [f32; CELLS],
     /// ∫₀^{g_i} ½ G dω with the cell bounds (non-decreasing).
     cumulative: [f32; CELLS + 1],
+}
+
+/// Levels of the sparse table of [`DownTable`]: runs of 1, 2, 4, …, 2^(L−1)
+/// cells, 2^(L−1) ≥ [`CELLS`].
+pub const DOWN_LEVELS: usize = 6;
+const _: () = assert!(1 << (DOWN_LEVELS - 1) >= CELLS);
+
+/// Minima of the down-move terms of one envelope over runs of cells, for one
+/// speed uncertainty (see [`SwingEnvelope::down_table`]).
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct DownTable {
+    u: f32,
+    /// mins[k][i]: smallest term over cells i … i + 2^k − 1.
+    mins: [[f32; CELLS]; DOWN_LEVELS],
+}
+
+/// Entry (k, i) of a sparse table; −∞ (no slack) where out of range, which
+/// is never taken (the indices are in range by construction).
+fn min_at(mins: &[[f32; CELLS]; DOWN_LEVELS], k: usize, i: usize) -> f32 {
+    mins.get(k)
+        .and_then(|l| l.get(i))
+        .copied()
+        .unwrap_or(f32::NEG_INFINITY)
 }
 
 /// Value at `i`, or `fallback` (never taken: every index below is in range by
@@ -234,7 +259,21 @@ impl SwingEnvelope {
     #[must_use]
     pub fn swing_energy(&self, state: &SeatState, w: f32) -> f32 {
         let w = libm::fabsf(w);
-        (self.model.jacobi(state, w) - self.v_eq_chord(w)).max(0.0)
+        self.swing_energy_from_jacobi(self.model.jacobi(state, w), w)
+    }
+
+    /// As [`swing_energy`](Self::swing_energy), from the Jacobi integral
+    /// `jacobi` of the state at speed `w` (the estimator's vector form
+    /// computes it without trigonometry).
+    #[must_use]
+    pub fn swing_energy_from_jacobi(&self, jacobi: f32, w: f32) -> f32 {
+        let s = jacobi - self.v_eq_chord(libm::fabsf(w));
+        // NaN stays NaN (the caller's certificate then fails).
+        if s > 0.0 || s.is_nan() {
+            s
+        } else {
+            0.0
+        }
     }
 
     /// Lower bound of √T_cap at speed magnitude `w` (0 at or above the top):
@@ -250,9 +289,12 @@ impl SwingEnvelope {
         let t0 = at(&self.v_eq, i, 0.0) + at(&self.v_eq_slope, i, 0.0) * (w - g0);
         let t1 = at(&self.v_eq, i + 1, 0.0) + at(&self.v_eq_slope, i + 1, 0.0) * (w - g1);
         let e_adm = -self.cone.0 - self.cone.1 * w * w;
-        let t_cap = e_adm - t0.min(t1);
+        let t_cap = e_adm - smaller(t0, t1);
         // Never below the cell's guaranteed value.
-        crate::math::sqrt(t_cap.max(0.0)).max(at(&self.room, i, 0.0))
+        larger(
+            crate::math::sqrt(larger(t_cap, 0.0)),
+            at(&self.room, i, 0.0),
+        )
     }
 
     /// ∫₀^w ½ G dω with the cell bounds: the most √S can grow while the speed
@@ -266,7 +308,7 @@ impl SwingEnvelope {
             }
             None => {
                 at(&self.cumulative, CELLS, 0.0)
-                    + at(&self.growth, CELLS - 1, 0.0) * (w - self.top_rad_s).max(0.0)
+                    + at(&self.growth, CELLS - 1, 0.0) * larger(w - self.top_rad_s, 0.0)
             }
         }
     }
@@ -289,11 +331,78 @@ impl SwingEnvelope {
         }
         let mut i = first;
         while i <= last && i < CELLS {
-            let low = at(&self.speeds, i, 0.0).max(lo);
-            let high = at(&self.speeds, i + 1, 0.0).min(hi);
+            let low = larger(at(&self.speeds, i, 0.0), lo);
+            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
             let grown = start + top_g - self.growth_to(low);
-            slack = slack.min(self.room(high + u) - grown);
+            slack = smaller(slack, self.room(high + u) - grown);
             i += 1;
+        }
+        slack
+    }
+
+    /// The table [`down_slack_with`](Self::down_slack_with) reads for the
+    /// speed uncertainty `u`: per cell i, room(g_{i+1} + u) + growth_to(g_i)
+    /// (the cell's term of [`down_slack`](Self::down_slack) without the
+    /// start), and its minima over runs of 2, 4, … cells (a sparse table).
+    #[must_use]
+    pub fn down_table(&self, u: f32) -> DownTable {
+        let mut mins = [[0.0_f32; CELLS]; DOWN_LEVELS];
+        if let Some(level) = mins.first_mut() {
+            for (i, m) in level.iter_mut().enumerate() {
+                *m = self.room(at(&self.speeds, i + 1, 0.0) + u)
+                    + self.growth_to(at(&self.speeds, i, 0.0));
+            }
+        }
+        let mut k = 1;
+        while k < DOWN_LEVELS {
+            let half = 1 << (k - 1);
+            let mut i = 0;
+            while i + (1 << k) <= CELLS {
+                let m = smaller(min_at(&mins, k - 1, i), min_at(&mins, k - 1, i + half));
+                if let Some(x) = mins.get_mut(k).and_then(|l| l.get_mut(i)) {
+                    *x = m;
+                }
+                i += 1;
+            }
+            k += 1;
+        }
+        DownTable { u, mins }
+    }
+
+    /// [`down_slack`](Self::down_slack) in constant time: the two end cells
+    /// of the piece directly, the whole cells between from `table` (built by
+    /// [`down_table`](Self::down_table) for the same `u`): at most two cell
+    /// look-ups and three room evaluations, whatever the length of the piece.
+    #[must_use]
+    pub fn down_slack_with(&self, table: &DownTable, start: f32, lo: f32, hi: f32) -> f32 {
+        let u = table.u;
+        let top_g = self.growth_to(hi);
+        let first = self.cell(lo).unwrap_or(CELLS);
+        let last = self.cell(hi).unwrap_or(CELLS);
+        // The piece starts at or above the top: no room there.
+        let mut slack = if last == CELLS { -start } else { f32::INFINITY };
+        let end_cell = |i: usize| {
+            let low = larger(at(&self.speeds, i, 0.0), lo);
+            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
+            self.room(high + u) - (start + top_g - self.growth_to(low))
+        };
+        if first < CELLS {
+            slack = smaller(slack, end_cell(first));
+        }
+        if last < CELLS && last > first {
+            slack = smaller(slack, end_cell(last));
+        }
+        // Whole cells first + 1 … last − 1.
+        if last > first + 1 {
+            let (l, r) = (first + 1, last - 1);
+            let len = r - l + 1;
+            #[allow(clippy::cast_possible_truncation)]
+            let k = (usize::BITS - 1 - len.leading_zeros()) as usize;
+            let m = smaller(
+                min_at(&table.mins, k, l),
+                min_at(&table.mins, k, r + 1 - (1 << k)),
+            );
+            slack = smaller(slack, m - start - top_g);
         }
         slack
     }

@@ -16,8 +16,9 @@ use crate::geometry::RideGeometry;
 use crate::request_governor::{GovernorDecision, GovernorInput, GovernorStatus, RequestGovernor};
 use crate::units::Angle;
 
-use super::envelope::SwingEnvelope;
+use super::envelope::{DownTable, SwingEnvelope};
 use super::estimator::{EstimatorFault, SwingEstimator, LENGTH_MODELS, MAX_ADVANCE_S};
+use crate::math::{larger, smaller};
 
 /// Parameters of the swing governor.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -92,6 +93,10 @@ pub struct Certificate {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SwingGovernor {
     envelopes: [SwingEnvelope; LENGTH_MODELS],
+    /// Each envelope's down-move table for the speed uncertainty.
+    down: [DownTable; LENGTH_MODELS],
+    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
+    steepest: f32,
     estimator: SwingEstimator,
     params: GovernorParams,
     sensor_tolerance_rad: f32,
@@ -155,9 +160,21 @@ impl SwingGovernor {
             *envelopes[1].model(),
             *envelopes[2].model(),
         ];
+        let u = params.speed_uncertainty_rad_s;
+        let down = [
+            envelopes[0].down_table(u),
+            envelopes[1].down_table(u),
+            envelopes[2].down_table(u),
+        ];
+        let steepest = envelopes
+            .iter()
+            .map(SwingEnvelope::steepest_growth)
+            .fold(0.0, f32::max);
         Ok(Self {
             estimator: SwingEstimator::new(models, params.estimator_period_s, params.rest_hold_s),
             envelopes,
+            down,
+            steepest,
             params: *params,
             sensor_tolerance_rad: tol.to_radians(),
             admitted: 0.0,
@@ -226,35 +243,80 @@ impl SwingGovernor {
         self.slack(self.estimator.speed_rad_s(), v, a, 0.0)
     }
 
-    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
-    fn steepest_growth(&self) -> f32 {
-        self.envelopes
-            .iter()
-            .map(SwingEnvelope::steepest_growth)
-            .fold(0.0, f32::max)
-    }
-
     /// Slack of the path from the commanded state (`v`, `a`) through the
     /// braking point to `target`, smallest over the lengths, 1/s.
     #[must_use]
     pub fn slack(&self, measured: f32, v: f32, a: f32, target: f32) -> f32 {
         let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
+        self.finish(&self.prefix(measured, v, v_ext), v_ext, target)
+    }
+
+    /// What every candidate target shares: per length, the grown √S and the
+    /// smallest slack from the present state through the braking of the
+    /// acceleration to `v_ext`.
+    fn prefix(&self, measured: f32, v: f32, v_ext: f32) -> Prefix {
         let u = self.params.speed_uncertainty_rad_s;
-        let mut slack = f32::INFINITY;
-        for (env, state) in self.envelopes.iter().zip(self.estimator.states().iter()) {
-            let s0 = crate::math::sqrt(env.swing_energy(state, measured));
+        let m = libm::fabsf(measured);
+        let va = libm::fabsf(v);
+        let mut out = Prefix {
+            grown: [0.0; LENGTH_MODELS],
+            slack: [0.0; LENGTH_MODELS],
+            growth_ext: [0.0; LENGTH_MODELS],
+            swing: 0.0,
+        };
+        let lengths = self
+            .envelopes
+            .iter()
+            .zip(self.down.iter())
+            .zip(self.estimator.link_models().iter())
+            .zip(self.estimator.link_states().iter())
+            .zip(out.grown.iter_mut())
+            .zip(out.slack.iter_mut())
+            .zip(out.growth_ext.iter_mut());
+        let mut swing = 0.0_f32;
+        for ((((((env, down), model), state), grown), slack), growth_ext) in lengths {
+            let s0 = crate::math::sqrt(env.swing_energy_from_jacobi(model.jacobi(state, m), m));
+            swing = larger(swing, s0);
             // The measured and the commanded speed may differ, and the true
             // speed from both: count the gap and the uncertainty once, as
             // travel already made. The room is read u higher throughout.
-            let gap =
-                libm::fabsf(env.growth_to(libm::fabsf(measured)) - env.growth_to(libm::fabsf(v)));
-            let spread = env.growth_to(libm::fabsf(v) + u) - env.growth_to(libm::fabsf(v));
+            let g_v = env.growth_to(va);
+            let gap = libm::fabsf(env.growth_to(m) - g_v);
+            let spread = env.growth_to(va + u) - g_v;
             let mut r = s0 + gap + spread;
-            let mut s = env.room(libm::fabsf(v) + u) - r;
-            for (from, to) in [(v, v_ext), (v_ext, target)] {
-                s = s.min(piece(env, &mut r, from, to, u));
-            }
-            slack = slack.min(s);
+            let s = env.room(va + u) - r;
+            let s = smaller(s, piece(env, down, &mut r, v, v_ext, u));
+            *grown = r;
+            *slack = s;
+            *growth_ext = env.growth_to(libm::fabsf(v_ext));
+        }
+        out.swing = swing;
+        out
+    }
+
+    /// Slack of the path of `prefix` continued from `v_ext` to `target`,
+    /// smallest over the lengths, 1/s (−∞ when not a number).
+    fn finish(&self, prefix: &Prefix, v_ext: f32, target: f32) -> f32 {
+        let u = self.params.speed_uncertainty_rad_s;
+        let mut slack = f32::INFINITY;
+        let same_direction = !((v_ext > 0.0 && target < 0.0) || (v_ext < 0.0 && target > 0.0));
+        let (m1, m2) = (libm::fabsf(v_ext), libm::fabsf(target));
+        let lengths = self
+            .envelopes
+            .iter()
+            .zip(self.down.iter())
+            .zip(prefix.grown.iter())
+            .zip(prefix.slack.iter())
+            .zip(prefix.growth_ext.iter());
+        for ((((env, down), &grown), &s), &g_ext) in lengths {
+            let last = if same_direction && m2 >= m1 {
+                // Up: √S grows, the room shrinks; the end is the binding point.
+                env.room(m2 + u) - (grown + env.growth_to(m2) - g_ext)
+            } else {
+                let mut r = grown;
+                piece(env, down, &mut r, v_ext, target, u)
+            };
+            slack = smaller(slack, smaller(s, last));
         }
         if slack.is_nan() {
             f32::NEG_INFINITY
@@ -269,12 +331,10 @@ impl SwingGovernor {
         let request = input.clamped_request_rad_s;
         let margin = self.params.margin_per_s;
         let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
-        let swing = self
-            .envelopes
-            .iter()
-            .zip(self.estimator.states().iter())
-            .map(|(e, s)| crate::math::sqrt(e.swing_energy(s, measured)))
-            .fold(0.0, f32::max);
+        // The present state and the braking of the acceleration, once; each
+        // candidate target below adds only its own last piece.
+        let prefix = self.prefix(measured, v, v_ext);
+        let swing = prefix.swing;
         let record = |admitted: f32, slack: f32, certified: bool, last: &mut Certificate| {
             *last = Certificate {
                 slack_per_s: slack,
@@ -285,7 +345,7 @@ impl SwingGovernor {
         };
         if !request.is_finite() {
             let held = self.admitted;
-            let s = self.slack(measured, v, a, held);
+            let s = self.finish(&prefix, v_ext, held);
             let admitted = record(held, s, s >= margin, &mut self.last);
             return GovernorDecision {
                 admitted_rad_s: admitted,
@@ -296,9 +356,9 @@ impl SwingGovernor {
         // the decision period per decision, toward the request.
         let held = self.admitted;
         let reach = self.params.target_rate_rad_s2 * self.params.estimator_period_s;
-        // max/min rather than clamp: no assertion on the bounds, so no panic path.
-        let trial = held + (request - held).max(-reach).min(reach);
-        let s_trial = self.slack(measured, v, a, trial);
+        // Comparisons rather than clamp: no assertion on the bounds, so no panic path.
+        let trial = held + smaller(larger(request - held, -reach), reach);
+        let s_trial = self.finish(&prefix, v_ext, trial);
         // A move away from standstill must leave enough slack for the first
         // step back down to be certified too (the bound charges a step down
         // at most ½G per rad/s, and the room grows back as the speed falls),
@@ -307,7 +367,7 @@ impl SwingGovernor {
         let reserve = if lowering {
             0.0
         } else {
-            2.0 * reach * self.steepest_growth()
+            2.0 * reach * self.steepest
         };
         if s_trial >= margin + reserve {
             self.admitted = record(trial, s_trial, true, &mut self.last);
@@ -318,14 +378,14 @@ impl SwingGovernor {
                 };
             }
         } else {
-            let s_held = self.slack(measured, v, a, held);
+            let s_held = self.finish(&prefix, v_ext, held);
             if s_held >= margin {
                 self.admitted = record(held, s_held, true, &mut self.last);
             } else {
                 // Nothing certified (after a disturbance the bound did not
                 // cover): the manoeuvre with the least examined growth is
                 // braking the acceleration and holding the speed reached.
-                let s_ext = self.slack(measured, v, a, v_ext);
+                let s_ext = self.finish(&prefix, v_ext, v_ext);
                 self.admitted = record(v_ext, s_ext, false, &mut self.last);
             }
         }
@@ -336,27 +396,46 @@ impl SwingGovernor {
     }
 }
 
-/// One piece of the path from signed speed `from` to `to`: adds its growth to
-/// `r` and returns the smallest slack along it.
-fn piece(env: &SwingEnvelope, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
-    // Split at zero when the direction of rotation changes.
-    if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
-        let first = magnitude_piece(env, r, libm::fabsf(from), 0.0, u);
-        let second = magnitude_piece(env, r, 0.0, libm::fabsf(to), u);
-        return first.min(second);
-    }
-    magnitude_piece(env, r, libm::fabsf(from), libm::fabsf(to), u)
+/// The part of a certificate every candidate target shares (per length).
+struct Prefix {
+    /// √S grown up to the braking point, 1/s.
+    grown: [f32; LENGTH_MODELS],
+    /// Smallest slack up to the braking point, 1/s.
+    slack: [f32; LENGTH_MODELS],
+    /// growth_to(|v_ext|).
+    growth_ext: [f32; LENGTH_MODELS],
+    /// Largest √S bound of the present state over the lengths, 1/s.
+    swing: f32,
 }
 
-fn magnitude_piece(env: &SwingEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -> f32 {
+/// One piece of the path from signed speed `from` to `to`: adds its growth to
+/// `r` and returns the smallest slack along it.
+fn piece(env: &SwingEnvelope, down: &DownTable, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
+    // Split at zero when the direction of rotation changes.
+    if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
+        let first = magnitude_piece(env, down, r, libm::fabsf(from), 0.0, u);
+        let second = magnitude_piece(env, down, r, 0.0, libm::fabsf(to), u);
+        return smaller(first, second);
+    }
+    magnitude_piece(env, down, r, libm::fabsf(from), libm::fabsf(to), u)
+}
+
+fn magnitude_piece(
+    env: &SwingEnvelope,
+    down: &DownTable,
+    r: &mut f32,
+    m1: f32,
+    m2: f32,
+    u: f32,
+) -> f32 {
     if m2 >= m1 {
         // Up: √S grows, the room shrinks; the end is the binding point.
         *r += env.growth_to(m2) - env.growth_to(m1);
         env.room(m2 + u) - *r
     } else {
         // Down: the room grows back as the speed falls, √S may grow too;
-        // checked cell by cell.
-        let slack = env.down_slack(*r, m2, m1, u);
+        // checked cell by cell (whole cells from the envelope's table).
+        let slack = env.down_slack_with(down, *r, m2, m1);
         *r += env.growth_to(m1) - env.growth_to(m2);
         slack
     }

@@ -22,6 +22,7 @@ pub mod closed_loop;
 pub mod envelope;
 pub mod estimator;
 pub mod governor;
+pub mod link;
 #[cfg(feature = "std")]
 pub mod search;
 
