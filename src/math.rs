@@ -61,6 +61,21 @@ pub fn smaller(x: f32, y: f32) -> f32 {
     }
 }
 
+/// The smaller of `x` and `y`, NaN when either is NaN (for slack minima:
+/// a NaN anywhere must reach the final check, not be skipped as `f32::min`
+/// and [`smaller`] skip it).
+#[inline(always)]
+#[must_use]
+pub fn least(x: f32, y: f32) -> f32 {
+    if x < y {
+        x
+    } else if y <= x {
+        y
+    } else {
+        f32::NAN
+    }
+}
+
 /// The larger of `x` and `y` by one comparison (see [`smaller`]).
 #[inline(always)]
 #[must_use]

@@ -10,7 +10,9 @@
 )]
 
 use swingdrive::protection::closed_loop::{run_loop, simulate_peak, Rig, Scenario};
-use swingdrive::protection::envelope::{sampled_k_with, K_ALLOWANCE, K_AZIMUTH, K_POLAR};
+use swingdrive::protection::envelope::{
+    sampled_k_with, CELLS, K_ALLOWANCE, K_AZIMUTH, K_POLAR, K_STRIDE,
+};
 use swingdrive::protection::estimator::{EstimatorFault, SwingEstimator};
 use swingdrive::sim::{replay, ReplayOptions, SeatDynamics, SpeedProfile, StartCondition};
 use swingdrive::*;
@@ -218,6 +220,51 @@ fn sampled_bound_k_covers_a_ten_times_finer_sample() {
                     fine <= K_ALLOWANCE * coarse,
                     "r0 {r0} L {l} w {w} chain {chain}: fine {fine} coarse {coarse}"
                 );
+            }
+        }
+    }
+}
+
+#[test]
+fn sampled_bound_k_covers_every_cell_of_the_grid() {
+    // Step 3 on the envelope's own grid (uniform in ω², so the K samples lie far apart
+    // at low speed): in every cell, K from a ten times finer sample of the cone at the
+    // cell's ends and middle stays within K_ALLOWANCE times the larger of the two coarse
+    // samples the cell takes (hand calculation, common practice). Three geometries,
+    // chains and rods.
+    for (r0, l) in [(4.0_f32, 6.5_f32), (0.0, 5.0), (2.0, 8.0)] {
+        for suspension in [Suspension::Chain, Suspension::Rod] {
+            let chain = suspension == Suspension::Chain;
+            let g = RideGeometry::new(r0, l, suspension, Gravity::STANDARD).unwrap();
+            let env = SwingEnvelope::new(&g, Angle::from_deg(50.0)).unwrap();
+            let (a, b) = (r0 / l, 9.80665 / l);
+            let phi_c = 50.0_f32.to_radians();
+            let k_at = |w: f32, polar: usize, azimuth: usize| {
+                let th = g
+                    .angle_for_speed(AngularSpeed::from_rad_per_s(w))
+                    .unwrap()
+                    .rad()
+                    .min(phi_c);
+                let rho_s2 = (a + th.sin()).powi(2);
+                let v_eq = -b * th.cos() - 0.5 * w * w * rho_s2;
+                sampled_k_with(a, b, w, phi_c, v_eq, rho_s2, chain, polar, azimuth)
+            };
+            for i in 0..CELLS {
+                let below = i - i % K_STRIDE;
+                let above = (below + K_STRIDE).min(CELLS);
+                let coarse = k_at(env.grid_speed(below), K_POLAR, K_AZIMUTH).max(k_at(
+                    env.grid_speed(above),
+                    K_POLAR,
+                    K_AZIMUTH,
+                ));
+                let (w0, w1) = (env.grid_speed(i), env.grid_speed(i + 1));
+                for w in [w0, 0.5 * (w0 + w1), w1] {
+                    let fine = k_at(w, 10 * K_POLAR, 10 * K_AZIMUTH);
+                    assert!(
+                        fine <= K_ALLOWANCE * coarse,
+                        "r0 {r0} L {l} {suspension:?} cell {i} w {w}: fine {fine} coarse {coarse}"
+                    );
+                }
             }
         }
     }

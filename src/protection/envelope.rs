@@ -25,12 +25,14 @@
 
 use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
-use crate::math::{larger, smaller};
+use crate::math::{larger, least, smaller};
 use crate::seat_model::{SeatModel, SeatState};
 use crate::units::Angle;
 
-/// Cells of the speed grid: cell i spans the speeds whose steady angles lie
-/// between i/N and (i+1)/N of the certified angle.
+/// Cells of the speed grid: cell i spans the speeds whose squares lie
+/// between i/N and (i+1)/N of the top speed's square (uniform in ω², so a
+/// speed's cell is found by one multiplication, and the cells are narrowest
+/// near the top, where the steady angle is most sensitive to the speed).
 pub const CELLS: usize = 32;
 
 /// Sample intervals over the cone for the bound K (polar × azimuthal).
@@ -39,7 +41,7 @@ pub const K_POLAR: usize = 16;
 pub const K_AZIMUTH: usize = 8;
 /// K is sampled at every `K_STRIDE`-th grid speed; a cell takes the larger of
 /// the two samples around it.
-pub const K_STRIDE: usize = 4;
+pub const K_STRIDE: usize = 2;
 
 /// Factor on the sampled K: the sup is taken over a finite sample, so the
 /// value between samples is covered by this allowance (checked against a
@@ -53,10 +55,11 @@ pub struct SwingEnvelope {
     model: SeatModel,
     /// Speed at which the steady angle is the certified angle, rad/s.
     top_rad_s: f32,
-    /// Grid speeds g_0 = 0 < g_1 < … < g_N = top: the speeds whose steady
-    /// angles are i/N of the certified angle (closed form, and finer where
-    /// the angle is most sensitive to the speed).
+    /// Grid speeds g_i = top·√(i/N), g_0 = 0 < g_1 < … < g_N = top.
     speeds: [f32; CELLS + 1],
+    /// N / top²: the cell of ω is ⌊ω² · this⌋ (corrected by one comparison
+    /// with the grid for rounding).
+    cell_scale: f32,
     /// V_eq at the grid speeds g_0 … g_N.
     v_eq: [f32; CELLS + 1],
     /// dV_eq/dω = −ω ρs² at the grid speeds (envelope theorem).
@@ -71,28 +74,14 @@ pub struct SwingEnvelope {
     cumulative: [f32; CELLS + 1],
 }
 
-/// Levels of the sparse table of [`DownTable`]: runs of 1, 2, 4, …, 2^(L−1)
-/// cells, 2^(L−1) ≥ [`CELLS`].
-pub const DOWN_LEVELS: usize = 6;
-const _: () = assert!(1 << (DOWN_LEVELS - 1) >= CELLS);
-
-/// Minima of the down-move terms of one envelope over runs of cells, for one
-/// speed uncertainty (see [`SwingEnvelope::down_table`]).
+/// The per-cell terms of the down moves of one envelope, for one speed
+/// uncertainty (see [`SwingEnvelope::down_table`]).
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct DownTable {
     u: f32,
-    /// mins[k][i]: smallest term over cells i … i + 2^k − 1.
-    mins: [[f32; CELLS]; DOWN_LEVELS],
-}
-
-/// Entry (k, i) of a sparse table; −∞ (no slack) where out of range, which
-/// is never taken (the indices are in range by construction).
-fn min_at(mins: &[[f32; CELLS]; DOWN_LEVELS], k: usize, i: usize) -> f32 {
-    mins.get(k)
-        .and_then(|l| l.get(i))
-        .copied()
-        .unwrap_or(f32::NEG_INFINITY)
+    /// terms[i] = room(g_{i+1} + u) + growth_to(g_i).
+    terms: [f32; CELLS],
 }
 
 /// Value at `i`, or `fallback` (never taken: every index below is in range by
@@ -105,8 +94,8 @@ impl SwingEnvelope {
     /// The envelope of `geometry` (its length is the model's length) for the
     /// certified angle `certified`.
     ///
-    /// Work is bounded: (N+1) steady solves and (N+1)·24·12 potential
-    /// evaluations without trigonometry.
+    /// Work is bounded: N steady solves (angle for speed) and
+    /// (N/K_STRIDE + 1)·(K_POLAR + 1)·(K_AZIMUTH + 1) potential evaluations.
     ///
     /// # Errors
     /// [`ParamError`] naming `certified_angle_deg` when the angle is not in
@@ -132,17 +121,29 @@ impl SwingEnvelope {
         let mut v_eq_slope = [0.0_f32; CELLS + 1];
         let mut k_at = [0.0_f32; CELLS + 1];
         let mut t_cap = [0.0_f32; CELLS + 1];
+        let top_rad_s = geometry
+            .speed_for_angle(certified)
+            .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
+            .rad_per_s();
+        if !(top_rad_s > 0.0 && top_rad_s.is_finite()) {
+            return Err(ParamError::OutOfRange("certified_angle_deg"));
+        }
         let mut i = 0;
         while i <= CELLS {
             #[allow(clippy::cast_precision_loss)]
-            let theta = phi_c * i as f32 / CELLS as f32;
-            let w = if i == 0 {
-                0.0
+            let w = if i == CELLS {
+                top_rad_s
+            } else {
+                top_rad_s * crate::math::sqrt(i as f32 / CELLS as f32)
+            };
+            // The steady angle at the grid speed (a solve; exact at the top).
+            let theta = if i == CELLS {
+                phi_c
             } else {
                 geometry
-                    .speed_for_angle(Angle::from_rad(theta))
+                    .angle_for_speed(crate::units::AngularSpeed::from_rad_per_s(w))
                     .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
-                    .rad_per_s()
+                    .rad()
             };
             let (st, ct) = crate::math::sin_cos(theta);
             let rho_s2 = (a + st) * (a + st);
@@ -165,7 +166,6 @@ impl SwingEnvelope {
             }
             i += 1;
         }
-        let top_rad_s = at(&speeds, CELLS, 0.0);
         let mut room = [0.0_f32; CELLS];
         let mut growth = [0.0_f32; CELLS];
         let mut cumulative = [0.0_f32; CELLS + 1];
@@ -200,6 +200,7 @@ impl SwingEnvelope {
             model,
             top_rad_s,
             speeds,
+            cell_scale: CELLS as f32 / (top_rad_s * top_rad_s),
             v_eq,
             v_eq_slope,
             cone: (b * c_c, 0.5 * c * c),
@@ -222,21 +223,21 @@ impl SwingEnvelope {
     }
 
     /// Cell holding speed magnitude `w` (`None` at or above the top speed,
-    /// or not finite): a bisection over the grid, at most 6 steps.
+    /// or not finite): ⌊ω² N / top²⌋, then one comparison with the grid each
+    /// way, so that g_i ≤ w < g_{i+1} holds whatever the rounding.
     fn cell(&self, w: f32) -> Option<usize> {
         if !(w >= 0.0 && w < self.top_rad_s) {
             return None;
         }
-        let (mut lo, mut hi) = (0, CELLS);
-        while hi - lo > 1 {
-            let mid = (lo + hi) / 2;
-            if w >= at(&self.speeds, mid, 0.0) {
-                lo = mid;
-            } else {
-                hi = mid;
-            }
+        // `as` saturates; w < top keeps the product below N up to rounding.
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let mut i = ((w * w * self.cell_scale) as usize).min(CELLS - 1);
+        if w < at(&self.speeds, i, 0.0) {
+            i = i.saturating_sub(1);
+        } else if i + 1 < CELLS && w >= at(&self.speeds, i + 1, 0.0) {
+            i += 1;
         }
-        Some(lo)
+        Some(i)
     }
 
     /// A lower bound of V_eq at speed magnitude `w`: the chord between grid
@@ -343,36 +344,21 @@ impl SwingEnvelope {
     /// The table [`down_slack_with`](Self::down_slack_with) reads for the
     /// speed uncertainty `u`: per cell i, room(g_{i+1} + u) + growth_to(g_i)
     /// (the cell's term of [`down_slack`](Self::down_slack) without the
-    /// start), and its minima over runs of 2, 4, … cells (a sparse table).
+    /// start).
     #[must_use]
     pub fn down_table(&self, u: f32) -> DownTable {
-        let mut mins = [[0.0_f32; CELLS]; DOWN_LEVELS];
-        if let Some(level) = mins.first_mut() {
-            for (i, m) in level.iter_mut().enumerate() {
-                *m = self.room(at(&self.speeds, i + 1, 0.0) + u)
-                    + self.growth_to(at(&self.speeds, i, 0.0));
-            }
+        let mut terms = [0.0_f32; CELLS];
+        for (i, t) in terms.iter_mut().enumerate() {
+            *t = self.room(at(&self.speeds, i + 1, 0.0) + u)
+                + self.growth_to(at(&self.speeds, i, 0.0));
         }
-        let mut k = 1;
-        while k < DOWN_LEVELS {
-            let half = 1 << (k - 1);
-            let mut i = 0;
-            while i + (1 << k) <= CELLS {
-                let m = smaller(min_at(&mins, k - 1, i), min_at(&mins, k - 1, i + half));
-                if let Some(x) = mins.get_mut(k).and_then(|l| l.get_mut(i)) {
-                    *x = m;
-                }
-                i += 1;
-            }
-            k += 1;
-        }
-        DownTable { u, mins }
+        DownTable { u, terms }
     }
 
-    /// [`down_slack`](Self::down_slack) in constant time: the two end cells
-    /// of the piece directly, the whole cells between from `table` (built by
-    /// [`down_table`](Self::down_table) for the same `u`): at most two cell
-    /// look-ups and three room evaluations, whatever the length of the piece.
+    /// [`down_slack`](Self::down_slack) from `table` (built by
+    /// [`down_table`](Self::down_table) for the same `u`): the two end cells
+    /// of the piece directly (three room evaluations), the whole cells between
+    /// by a scan of their precomputed terms (at most [`CELLS`] comparisons).
     #[must_use]
     pub fn down_slack_with(&self, table: &DownTable, start: f32, lo: f32, hi: f32) -> f32 {
         let u = table.u;
@@ -387,24 +373,17 @@ impl SwingEnvelope {
             self.room(high + u) - (start + top_g - self.growth_to(low))
         };
         if first < CELLS {
-            slack = smaller(slack, end_cell(first));
+            slack = least(slack, end_cell(first));
         }
         if last < CELLS && last > first {
-            slack = smaller(slack, end_cell(last));
+            slack = least(slack, end_cell(last));
         }
         // Whole cells first + 1 … last − 1.
-        if last > first + 1 {
-            let (l, r) = (first + 1, last - 1);
-            let len = r - l + 1;
-            #[allow(clippy::cast_possible_truncation)]
-            let k = (usize::BITS - 1 - len.leading_zeros()) as usize;
-            let m = smaller(
-                min_at(&table.mins, k, l),
-                min_at(&table.mins, k, r + 1 - (1 << k)),
-            );
-            slack = smaller(slack, m - start - top_g);
+        let mut m = f32::INFINITY;
+        for &t in table.terms.iter().take(last).skip(first + 1) {
+            m = least(m, t);
         }
-        slack
+        least(slack, m - start - top_g)
     }
 
     /// Largest ½ G over the cells, 1/s per rad/s.

@@ -126,7 +126,7 @@ impl SwingEstimator {
             return Err(self.latch(EstimatorFault::NotFinite));
         }
         if libm::fabsf(measured_rad_s) <= REST_SPEED_RAD_S {
-            self.still_s = (self.still_s + dt_s).min(1.0e6);
+            self.still_s = crate::math::smaller(self.still_s + dt_s, 1.0e6);
             if self.still_s >= self.rest_hold_s {
                 // The swing has died out (commissioning assumption on
                 // rest_hold_s): the model may restart from rest.
@@ -161,20 +161,24 @@ impl SwingEstimator {
         if !(h > 0.0 && alpha.is_finite()) {
             return Err(self.latch(EstimatorFault::NotFinite));
         }
-        let mut next = self.states;
-        for (state, model) in next.iter_mut().zip(self.models.iter()) {
+        // Stepped in place: on a fault the states are no longer trusted (the
+        // latch clears the confirmation; only a confirmed rest resets them).
+        let mut finite = true;
+        for (state, model) in self.states.iter_mut().zip(self.models.iter()) {
             let mut w = self.last_speed;
             let mut k = 0;
-            while k < n {
+            while k < n && finite {
                 match model.step(state, w, alpha, h) {
                     Some(s) => *state = s,
-                    None => return Err(self.latch(EstimatorFault::NotFinite)),
+                    None => finite = false,
                 }
                 w += alpha * h;
                 k += 1;
             }
         }
-        self.states = next;
+        if !finite {
+            return Err(self.latch(EstimatorFault::NotFinite));
+        }
         self.last_speed = measured_rad_s;
         self.pending_s = 0.0;
         Ok(true)

@@ -18,7 +18,7 @@ use crate::units::Angle;
 
 use super::envelope::{DownTable, SwingEnvelope};
 use super::estimator::{EstimatorFault, SwingEstimator, LENGTH_MODELS, MAX_ADVANCE_S};
-use crate::math::{larger, smaller};
+use crate::math::{larger, least, smaller};
 
 /// Parameters of the swing governor.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -285,7 +285,7 @@ impl SwingGovernor {
             let spread = env.growth_to(va + u) - g_v;
             let mut r = s0 + gap + spread;
             let s = env.room(va + u) - r;
-            let s = smaller(s, piece(env, down, &mut r, v, v_ext, u));
+            let s = least(s, piece(env, down, &mut r, v, v_ext, u));
             *grown = r;
             *slack = s;
             *growth_ext = env.growth_to(libm::fabsf(v_ext));
@@ -316,7 +316,7 @@ impl SwingGovernor {
                 let mut r = grown;
                 piece(env, down, &mut r, v_ext, target, u)
             };
-            slack = smaller(slack, smaller(s, last));
+            slack = least(slack, least(s, last));
         }
         if slack.is_nan() {
             f32::NEG_INFINITY
@@ -415,7 +415,7 @@ fn piece(env: &SwingEnvelope, down: &DownTable, r: &mut f32, from: f32, to: f32,
     if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
         let first = magnitude_piece(env, down, r, libm::fabsf(from), 0.0, u);
         let second = magnitude_piece(env, down, r, 0.0, libm::fabsf(to), u);
-        return smaller(first, second);
+        return least(first, second);
     }
     magnitude_piece(env, down, r, libm::fabsf(from), libm::fabsf(to), u)
 }
