@@ -549,10 +549,12 @@ fn governor_faults_without_a_speed_and_admits_zero_while_stopping() {
 }
 
 #[test]
-fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
-    // The governor reads a down move's slack from a sparse table of the per-cell terms
-    // (constant time); it must give the cell-by-cell check of `down_slack`, up to f32
-    // rounding (1e-5), on pieces of every length, partly above the top too.
+fn band_envelope_folds_the_three_lengths_conservatively() {
+    // Step 5: the certificate reads one folded envelope for the length band. At any
+    // speed its room must not exceed any length's room, its growth integral must not
+    // fall below any length's, and its swing bound must not fall below any length's
+    // (each length's own envelope on the common grid is the reference; hand
+    // calculation, common practice). Chains and rods, random states and speeds.
     let mut seed = 0x9e37_79b9_u64;
     let mut next = move || {
         seed ^= seed << 13;
@@ -562,16 +564,77 @@ fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
     };
     for suspension in [Suspension::Chain, Suspension::Rod] {
         let g = issue_ride(suspension);
-        let env = SwingEnvelope::new(&g, Angle::from_deg(50.0)).unwrap();
+        let gov = SwingGovernor::new(&g, &GovernorParams::demo(&g, 50.0, 0.05)).unwrap();
+        let band = gov.band();
+        let envs = gov.envelopes();
+        for env in envs {
+            assert_eq!(env.top_rad_s(), band.top_rad_s());
+        }
+        for _ in 0..3000 {
+            let w = 1.02 * band.top_rad_s() * next();
+            let w2 = 1.02 * band.top_rad_s() * next();
+            let state = SeatState {
+                radial_rad: 0.9 * next(),
+                radial_rate: 0.4 * (next() - 0.5),
+                tangential_rad: if suspension == Suspension::Chain {
+                    0.5 * (next() - 0.5)
+                } else {
+                    0.0
+                },
+                tangential_rate: if suspension == Suspension::Chain {
+                    0.4 * (next() - 0.5)
+                } else {
+                    0.0
+                },
+            };
+            let jacobi = [
+                envs[0].model().jacobi(&state, w),
+                envs[1].model().jacobi(&state, w),
+                envs[2].model().jacobi(&state, w),
+            ];
+            let swing = band.swing(&jacobi, w);
+            for env in envs {
+                assert!(band.room(w) <= env.room(w), "room at {w}");
+                let (lo, hi) = (w.min(w2), w.max(w2));
+                assert!(
+                    band.growth_to(hi) - band.growth_to(lo)
+                        >= env.growth_to(hi) - env.growth_to(lo) - 1e-6,
+                    "growth over [{lo}, {hi}]"
+                );
+                assert!(swing >= env.swing_energy(&state, w).sqrt() - 1e-6);
+            }
+        }
+    }
+}
+
+#[test]
+fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
+    // The governor reads a down move's slack from the per-cell terms of the band's
+    // envelope (one comparison per whole cell); it must give the cell-by-cell check,
+    // up to f32 rounding (1e-5), on pieces of every length, partly above the top too.
+    let mut seed = 0x9e37_79b9_u64;
+    let mut next = move || {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        (seed >> 11) as f32 / (1u64 << 53) as f32
+    };
+    for suspension in [Suspension::Chain, Suspension::Rod] {
+        let g = issue_ride(suspension);
         for u in [0.0_f32, 0.005, 0.02] {
-            let table = env.down_table(u);
+            let params = GovernorParams {
+                speed_uncertainty_rad_s: u,
+                ..GovernorParams::demo(&g, 50.0, 0.05)
+            };
+            let gov = SwingGovernor::new(&g, &params).unwrap();
+            let band = gov.band();
             for _ in 0..2000 {
-                let x = 1.05 * env.top_rad_s() * next();
-                let y = 1.05 * env.top_rad_s() * next();
+                let x = 1.05 * band.top_rad_s() * next();
+                let y = 1.05 * band.top_rad_s() * next();
                 let (lo, hi) = (x.min(y), x.max(y));
                 let start = 0.3 * next();
-                let slow = env.down_slack(start, lo, hi, u);
-                let fast = env.down_slack_with(&table, start, lo, hi);
+                let slow = band.down_slack_by_cells(start, lo, hi);
+                let fast = band.down_slack(start, lo, hi);
                 assert!(
                     (slow - fast).abs() <= 1e-5 * (1.0 + slow.abs()),
                     "{suspension:?} u {u} [{lo}, {hi}] start {start}: {slow} vs {fast}"

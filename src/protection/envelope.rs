@@ -25,7 +25,7 @@
 
 use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
-use crate::math::{larger, least, smaller};
+use crate::math::{larger, smaller};
 use crate::seat_model::{SeatModel, SeatState};
 use crate::units::Angle;
 
@@ -74,16 +74,6 @@ pub struct SwingEnvelope {
     cumulative: [f32; CELLS + 1],
 }
 
-/// The per-cell terms of the down moves of one envelope, for one speed
-/// uncertainty (see [`SwingEnvelope::down_table`]).
-#[derive(Debug, Clone, PartialEq)]
-#[cfg_attr(feature = "defmt", derive(defmt::Format))]
-pub struct DownTable {
-    u: f32,
-    /// terms[i] = room(g_{i+1} + u) + growth_to(g_i).
-    terms: [f32; CELLS],
-}
-
 /// Value at `i`, or `fallback` (never taken: every index below is in range by
 /// construction; the fallback keeps the code free of panics).
 fn at<const N: usize>(table: &[f32; N], i: usize, fallback: f32) -> f32 {
@@ -101,6 +91,30 @@ impl SwingEnvelope {
     /// [`ParamError`] naming `certified_angle_deg` when the angle is not in
     /// (0°, 85°].
     pub fn new(geometry: &RideGeometry, certified: Angle) -> Result<Self, ParamError> {
+        Self::build(geometry, certified, None)
+    }
+
+    /// The envelope of `geometry` on a grid that ends at `grid_top` (rad/s),
+    /// at most the speed whose steady angle is the certified angle (so that
+    /// several lengths share one grid: the lowest top of them). Speeds at or
+    /// above `grid_top` get no room.
+    ///
+    /// # Errors
+    /// As [`new`](Self::new); `certified_angle_deg` also when `grid_top` is
+    /// not in (0, top].
+    pub fn with_grid_top(
+        geometry: &RideGeometry,
+        certified: Angle,
+        grid_top: f32,
+    ) -> Result<Self, ParamError> {
+        Self::build(geometry, certified, Some(grid_top))
+    }
+
+    fn build(
+        geometry: &RideGeometry,
+        certified: Angle,
+        grid_top: Option<f32>,
+    ) -> Result<Self, ParamError> {
         let phi_c = certified.rad();
         if !phi_c.is_finite() {
             return Err(ParamError::NonFinite("certified_angle_deg"));
@@ -128,6 +142,12 @@ impl SwingEnvelope {
         if !(top_rad_s > 0.0 && top_rad_s.is_finite()) {
             return Err(ParamError::OutOfRange("certified_angle_deg"));
         }
+        let own_top = top_rad_s;
+        let top_rad_s = match grid_top {
+            Some(t) if t > 0.0 && t <= own_top => t,
+            Some(_) => return Err(ParamError::OutOfRange("certified_angle_deg")),
+            None => own_top,
+        };
         let mut i = 0;
         while i <= CELLS {
             #[allow(clippy::cast_precision_loss)]
@@ -137,7 +157,7 @@ impl SwingEnvelope {
                 top_rad_s * crate::math::sqrt(i as f32 / CELLS as f32)
             };
             // The steady angle at the grid speed (a solve; exact at the top).
-            let theta = if i == CELLS {
+            let theta = if i == CELLS && top_rad_s == own_top {
                 phi_c
             } else {
                 geometry
@@ -210,13 +230,35 @@ impl SwingEnvelope {
         })
     }
 
+    /// The grid speeds g_0 … g_N, rad/s.
+    pub(crate) const fn grid(&self) -> &[f32; CELLS + 1] {
+        &self.speeds
+    }
+
+    /// V_eq at the grid speeds, 1/s².
+    pub(crate) const fn v_eq_grid(&self) -> &[f32; CELLS + 1] {
+        &self.v_eq
+    }
+
+    /// Per cell, √T_cap at its upper end (the least room over the cell), 1/s.
+    pub(crate) const fn room_cells(&self) -> &[f32; CELLS] {
+        &self.room
+    }
+
+    /// Per cell, the bound on ½ G, 1/s per rad/s.
+    pub(crate) const fn growth_cells(&self) -> &[f32; CELLS] {
+        &self.growth
+    }
+
     /// The seat model of this length (undamped).
     #[must_use]
     pub const fn model(&self) -> &SeatModel {
         &self.model
     }
 
-    /// Speed whose steady angle is the certified angle, rad/s.
+    /// The top of the grid, rad/s: the speed whose steady angle is the
+    /// certified angle, or the lower `grid_top` of
+    /// [`with_grid_top`](Self::with_grid_top).
     #[must_use]
     pub const fn top_rad_s(&self) -> f32 {
         self.top_rad_s
@@ -339,51 +381,6 @@ impl SwingEnvelope {
             i += 1;
         }
         slack
-    }
-
-    /// The table [`down_slack_with`](Self::down_slack_with) reads for the
-    /// speed uncertainty `u`: per cell i, room(g_{i+1} + u) + growth_to(g_i)
-    /// (the cell's term of [`down_slack`](Self::down_slack) without the
-    /// start).
-    #[must_use]
-    pub fn down_table(&self, u: f32) -> DownTable {
-        let mut terms = [0.0_f32; CELLS];
-        for (i, t) in terms.iter_mut().enumerate() {
-            *t = self.room(at(&self.speeds, i + 1, 0.0) + u)
-                + self.growth_to(at(&self.speeds, i, 0.0));
-        }
-        DownTable { u, terms }
-    }
-
-    /// [`down_slack`](Self::down_slack) from `table` (built by
-    /// [`down_table`](Self::down_table) for the same `u`): the two end cells
-    /// of the piece directly (three room evaluations), the whole cells between
-    /// by a scan of their precomputed terms (at most [`CELLS`] comparisons).
-    #[must_use]
-    pub fn down_slack_with(&self, table: &DownTable, start: f32, lo: f32, hi: f32) -> f32 {
-        let u = table.u;
-        let top_g = self.growth_to(hi);
-        let first = self.cell(lo).unwrap_or(CELLS);
-        let last = self.cell(hi).unwrap_or(CELLS);
-        // The piece starts at or above the top: no room there.
-        let mut slack = if last == CELLS { -start } else { f32::INFINITY };
-        let end_cell = |i: usize| {
-            let low = larger(at(&self.speeds, i, 0.0), lo);
-            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
-            self.room(high + u) - (start + top_g - self.growth_to(low))
-        };
-        if first < CELLS {
-            slack = least(slack, end_cell(first));
-        }
-        if last < CELLS && last > first {
-            slack = least(slack, end_cell(last));
-        }
-        // Whole cells first + 1 … last − 1.
-        let mut m = f32::INFINITY;
-        for &t in table.terms.iter().take(last).skip(first + 1) {
-            m = least(m, t);
-        }
-        least(slack, m - start - top_g)
     }
 
     /// Largest ½ G over the cells, 1/s per rad/s.

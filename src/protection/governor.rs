@@ -16,7 +16,8 @@ use crate::geometry::RideGeometry;
 use crate::request_governor::{GovernorDecision, GovernorInput, GovernorStatus, RequestGovernor};
 use crate::units::Angle;
 
-use super::envelope::{DownTable, SwingEnvelope};
+use super::band::BandEnvelope;
+use super::envelope::SwingEnvelope;
 use super::estimator::{EstimatorFault, SwingEstimator, LENGTH_MODELS, MAX_ADVANCE_S};
 use crate::math::{larger, least, smaller};
 
@@ -93,8 +94,9 @@ pub struct Certificate {
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SwingGovernor {
     envelopes: [SwingEnvelope; LENGTH_MODELS],
-    /// Each envelope's down-move table for the speed uncertainty.
-    down: [DownTable; LENGTH_MODELS],
+    /// The three envelopes folded (least room, largest growth per cell):
+    /// what the per-tick certificate reads.
+    band: BandEnvelope,
     /// Largest ½ G over the lengths and cells, 1/s per rad/s.
     steepest: f32,
     estimator: SwingEstimator,
@@ -150,30 +152,31 @@ impl SwingGovernor {
             return Err(ParamError::NotPositive("target_rate_rad_s2"));
         }
         let certified = Angle::from_deg(deg);
+        let short = geometry.with_length(l_min)?;
+        let long = geometry.with_length(l_max)?;
+        // One grid for the band, up to the lowest top of the three lengths.
+        let top = |g: &RideGeometry| {
+            g.speed_for_angle(certified)
+                .map(crate::units::AngularSpeed::rad_per_s)
+                .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))
+        };
+        let grid_top = smaller(top(&short)?, smaller(top(geometry)?, top(&long)?));
         let envelopes = [
-            SwingEnvelope::new(&geometry.with_length(l_min)?, certified)?,
-            SwingEnvelope::new(geometry, certified)?,
-            SwingEnvelope::new(&geometry.with_length(l_max)?, certified)?,
+            SwingEnvelope::with_grid_top(&short, certified, grid_top)?,
+            SwingEnvelope::with_grid_top(geometry, certified, grid_top)?,
+            SwingEnvelope::with_grid_top(&long, certified, grid_top)?,
         ];
         let models = [
             *envelopes[0].model(),
             *envelopes[1].model(),
             *envelopes[2].model(),
         ];
-        let u = params.speed_uncertainty_rad_s;
-        let down = [
-            envelopes[0].down_table(u),
-            envelopes[1].down_table(u),
-            envelopes[2].down_table(u),
-        ];
-        let steepest = envelopes
-            .iter()
-            .map(SwingEnvelope::steepest_growth)
-            .fold(0.0, f32::max);
+        let band = BandEnvelope::new(&envelopes, params.speed_uncertainty_rad_s);
+        let steepest = band.steepest_growth();
         Ok(Self {
             estimator: SwingEstimator::new(models, params.estimator_period_s, params.rest_hold_s),
             envelopes,
-            down,
+            band,
             steepest,
             params: *params,
             sensor_tolerance_rad: tol.to_radians(),
@@ -211,10 +214,17 @@ impl SwingGovernor {
         &self.estimator
     }
 
-    /// The envelopes (shortest, nominal, longest length).
+    /// The envelopes (shortest, nominal, longest length), on the band's
+    /// common grid.
     #[must_use]
     pub const fn envelopes(&self) -> &[SwingEnvelope; LENGTH_MODELS] {
         &self.envelopes
+    }
+
+    /// The band's folded envelope (what the certificate reads).
+    #[must_use]
+    pub const fn band(&self) -> &BandEnvelope {
+        &self.band
     }
 
     /// What the last decision found.
@@ -251,73 +261,54 @@ impl SwingGovernor {
         self.finish(&self.prefix(measured, v, v_ext), v_ext, target)
     }
 
-    /// What every candidate target shares: per length, the grown √S and the
-    /// smallest slack from the present state through the braking of the
-    /// acceleration to `v_ext`.
+    /// What every candidate target shares: the grown √S and the smallest
+    /// slack from the present state through the braking of the acceleration
+    /// to `v_ext`, on the band's folded envelope.
     fn prefix(&self, measured: f32, v: f32, v_ext: f32) -> Prefix {
+        let band = &self.band;
         let u = self.params.speed_uncertainty_rad_s;
         let m = libm::fabsf(measured);
         let va = libm::fabsf(v);
-        let mut out = Prefix {
-            grown: [0.0; LENGTH_MODELS],
-            slack: [0.0; LENGTH_MODELS],
-            growth_ext: [0.0; LENGTH_MODELS],
-            swing: 0.0,
-        };
-        let lengths = self
-            .envelopes
-            .iter()
-            .zip(self.down.iter())
-            .zip(self.estimator.link_models().iter())
-            .zip(self.estimator.link_states().iter())
-            .zip(out.grown.iter_mut())
-            .zip(out.slack.iter_mut())
-            .zip(out.growth_ext.iter_mut());
-        let mut swing = 0.0_f32;
-        for ((((((env, down), model), state), grown), slack), growth_ext) in lengths {
-            let s0 = crate::math::sqrt(env.swing_energy_from_jacobi(model.jacobi(state, m), m));
-            swing = larger(swing, s0);
-            // The measured and the commanded speed may differ, and the true
-            // speed from both: count the gap and the uncertainty once, as
-            // travel already made. The room is read u higher throughout.
-            let g_v = env.growth_to(va);
-            let gap = libm::fabsf(env.growth_to(m) - g_v);
-            let spread = env.growth_to(va + u) - g_v;
-            let mut r = s0 + gap + spread;
-            let s = env.room(va + u) - r;
-            let s = least(s, piece(env, down, &mut r, v, v_ext, u));
-            *grown = r;
-            *slack = s;
-            *growth_ext = env.growth_to(libm::fabsf(v_ext));
+        let models = self.estimator.link_models();
+        let states = self.estimator.link_states();
+        let jacobi = [
+            models[0].jacobi(&states[0], m),
+            models[1].jacobi(&states[1], m),
+            models[2].jacobi(&states[2], m),
+        ];
+        let s0 = band.swing(&jacobi, m);
+        // The measured and the commanded speed may differ, and the true speed
+        // from both: count the gap and the uncertainty once, as travel already
+        // made. The room is read u higher throughout.
+        let g_v = band.growth_to(va);
+        let gap = libm::fabsf(band.growth_to(m) - g_v);
+        let spread = band.growth_to(va + u) - g_v;
+        let mut grown = s0 + gap + spread;
+        let slack = band.room(va + u) - grown;
+        let slack = least(slack, piece(band, &mut grown, v, v_ext, u));
+        Prefix {
+            grown,
+            slack,
+            growth_ext: band.growth_to(libm::fabsf(v_ext)),
+            swing: s0,
         }
-        out.swing = swing;
-        out
     }
 
-    /// Slack of the path of `prefix` continued from `v_ext` to `target`,
-    /// smallest over the lengths, 1/s (−∞ when not a number).
+    /// Slack of the path of `prefix` continued from `v_ext` to `target`, 1/s
+    /// (−∞ when not a number).
     fn finish(&self, prefix: &Prefix, v_ext: f32, target: f32) -> f32 {
+        let band = &self.band;
         let u = self.params.speed_uncertainty_rad_s;
-        let mut slack = f32::INFINITY;
         let same_direction = !((v_ext > 0.0 && target < 0.0) || (v_ext < 0.0 && target > 0.0));
         let (m1, m2) = (libm::fabsf(v_ext), libm::fabsf(target));
-        let lengths = self
-            .envelopes
-            .iter()
-            .zip(self.down.iter())
-            .zip(prefix.grown.iter())
-            .zip(prefix.slack.iter())
-            .zip(prefix.growth_ext.iter());
-        for ((((env, down), &grown), &s), &g_ext) in lengths {
-            let last = if same_direction && m2 >= m1 {
-                // Up: √S grows, the room shrinks; the end is the binding point.
-                env.room(m2 + u) - (grown + env.growth_to(m2) - g_ext)
-            } else {
-                let mut r = grown;
-                piece(env, down, &mut r, v_ext, target, u)
-            };
-            slack = least(slack, least(s, last));
-        }
+        let last = if same_direction && m2 >= m1 {
+            // Up: √S grows, the room shrinks; the end is the binding point.
+            band.room(m2 + u) - (prefix.grown + band.growth_to(m2) - prefix.growth_ext)
+        } else {
+            let mut r = prefix.grown;
+            piece(band, &mut r, v_ext, target, u)
+        };
+        let slack = least(prefix.slack, last);
         if slack.is_nan() {
             f32::NEG_INFINITY
         } else {
@@ -396,47 +387,40 @@ impl SwingGovernor {
     }
 }
 
-/// The part of a certificate every candidate target shares (per length).
+/// The part of a certificate every candidate target shares.
 struct Prefix {
     /// √S grown up to the braking point, 1/s.
-    grown: [f32; LENGTH_MODELS],
+    grown: f32,
     /// Smallest slack up to the braking point, 1/s.
-    slack: [f32; LENGTH_MODELS],
+    slack: f32,
     /// growth_to(|v_ext|).
-    growth_ext: [f32; LENGTH_MODELS],
+    growth_ext: f32,
     /// Largest √S bound of the present state over the lengths, 1/s.
     swing: f32,
 }
 
 /// One piece of the path from signed speed `from` to `to`: adds its growth to
 /// `r` and returns the smallest slack along it.
-fn piece(env: &SwingEnvelope, down: &DownTable, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
+fn piece(band: &BandEnvelope, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
     // Split at zero when the direction of rotation changes.
     if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
-        let first = magnitude_piece(env, down, r, libm::fabsf(from), 0.0, u);
-        let second = magnitude_piece(env, down, r, 0.0, libm::fabsf(to), u);
+        let first = magnitude_piece(band, r, libm::fabsf(from), 0.0, u);
+        let second = magnitude_piece(band, r, 0.0, libm::fabsf(to), u);
         return least(first, second);
     }
-    magnitude_piece(env, down, r, libm::fabsf(from), libm::fabsf(to), u)
+    magnitude_piece(band, r, libm::fabsf(from), libm::fabsf(to), u)
 }
 
-fn magnitude_piece(
-    env: &SwingEnvelope,
-    down: &DownTable,
-    r: &mut f32,
-    m1: f32,
-    m2: f32,
-    u: f32,
-) -> f32 {
+fn magnitude_piece(band: &BandEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -> f32 {
     if m2 >= m1 {
         // Up: √S grows, the room shrinks; the end is the binding point.
-        *r += env.growth_to(m2) - env.growth_to(m1);
-        env.room(m2 + u) - *r
+        *r += band.growth_to(m2) - band.growth_to(m1);
+        band.room(m2 + u) - *r
     } else {
         // Down: the room grows back as the speed falls, √S may grow too;
-        // checked cell by cell (whole cells from the envelope's table).
-        let slack = env.down_slack_with(down, *r, m2, m1);
-        *r += env.growth_to(m1) - env.growth_to(m2);
+        // checked cell by cell (whole cells from the band's table).
+        let slack = band.down_slack(*r, m2, m1);
+        *r += band.growth_to(m1) - band.growth_to(m2);
         slack
     }
 }

@@ -1,0 +1,236 @@
+//! The envelope of the whole length band: the three lengths' envelopes on one
+//! grid, folded into the least room and the largest growth per cell, so that
+//! the per-tick certificate walks one path instead of three.
+//!
+//! Soundness (docs/dynamic_protection.md, Step 5): for every length ℓ of the
+//! band, √S_ℓ ≤ max_ℓ √S_ℓ, ½G_ℓ ≤ max_ℓ ½G_ℓ and √T_cap,ℓ ≥ min_ℓ √T_cap,ℓ,
+//! so a path the folded tables certify is certified for each length. The room
+//! of a cell is its value at the cell's upper end: T_cap falls with the speed
+//! (dT_cap/dω = −ω (c² − ρs²) ≤ 0, as ρs = a + sin θs ≤ c below the top), so
+//! that is the least room over the cell.
+
+use crate::math::{larger, least, smaller};
+
+use super::envelope::{SwingEnvelope, CELLS};
+use super::estimator::LENGTH_MODELS;
+
+/// Value at `i`, or `fallback` (never taken: the indices are in range by
+/// construction; the fallback keeps the code free of panics).
+fn at<const N: usize>(table: &[f32; N], i: usize, fallback: f32) -> f32 {
+    table.get(i).copied().unwrap_or(fallback)
+}
+
+/// The folded envelope of the length band (see the module documentation).
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BandEnvelope {
+    /// Top of the common grid (the lowest top of the lengths), rad/s.
+    top_rad_s: f32,
+    /// N / top² (see [`SwingEnvelope`]'s grid).
+    cell_scale: f32,
+    /// Grid speeds g_i = top·√(i/N), rad/s.
+    speeds: [f32; CELLS + 1],
+    /// Per length, V_eq at the grid speeds (its chords bound V_eq from below).
+    v_eq: [[f32; CELLS + 1]; LENGTH_MODELS],
+    /// Per cell, the least room over the lengths at the cell's upper end, 1/s.
+    room: [f32; CELLS],
+    /// Per cell, the largest ½ G over the lengths, 1/s per rad/s.
+    growth: [f32; CELLS],
+    /// ∫₀^{g_i} ½ G dω with the folded cell bounds.
+    cumulative: [f32; CELLS + 1],
+    /// Speed uncertainty the down terms are made for, rad/s.
+    u: f32,
+    /// Per cell i: room(g_{i+1} + u) + growth_to(g_i) (a down move's term).
+    down: [f32; CELLS],
+}
+
+impl BandEnvelope {
+    /// Folds `envelopes` (built on one grid by
+    /// [`SwingEnvelope::with_grid_top`] with the same top) for the speed
+    /// uncertainty `u` (rad/s).
+    #[must_use]
+    pub fn new(envelopes: &[SwingEnvelope; LENGTH_MODELS], u: f32) -> Self {
+        let [e0, e1, e2] = envelopes;
+        let speeds = *e0.grid();
+        let top_rad_s = at(&speeds, CELLS, 0.0);
+        let mut room = [0.0_f32; CELLS];
+        let mut growth = [0.0_f32; CELLS];
+        for (i, (r, g)) in room.iter_mut().zip(growth.iter_mut()).enumerate() {
+            *r = smaller(
+                at(e0.room_cells(), i, 0.0),
+                smaller(at(e1.room_cells(), i, 0.0), at(e2.room_cells(), i, 0.0)),
+            );
+            *g = larger(
+                at(e0.growth_cells(), i, f32::INFINITY),
+                larger(
+                    at(e1.growth_cells(), i, f32::INFINITY),
+                    at(e2.growth_cells(), i, f32::INFINITY),
+                ),
+            );
+        }
+        let mut cumulative = [0.0_f32; CELLS + 1];
+        let mut sum = 0.0_f32;
+        for (i, cu) in cumulative.iter_mut().enumerate() {
+            *cu = sum;
+            sum += at(&growth, i, 0.0) * (at(&speeds, i + 1, 0.0) - at(&speeds, i, 0.0));
+        }
+        #[allow(clippy::cast_precision_loss)]
+        let mut band = Self {
+            top_rad_s,
+            cell_scale: CELLS as f32 / (top_rad_s * top_rad_s),
+            speeds,
+            v_eq: [*e0.v_eq_grid(), *e1.v_eq_grid(), *e2.v_eq_grid()],
+            room,
+            growth,
+            cumulative,
+            u,
+            down: [0.0; CELLS],
+        };
+        let mut down = [0.0_f32; CELLS];
+        for (i, d) in down.iter_mut().enumerate() {
+            *d = band.room(at(&band.speeds, i + 1, 0.0) + u)
+                + band.growth_to(at(&band.speeds, i, 0.0));
+        }
+        band.down = down;
+        band
+    }
+
+    /// Top of the common grid, rad/s.
+    #[must_use]
+    pub const fn top_rad_s(&self) -> f32 {
+        self.top_rad_s
+    }
+
+    /// The speed uncertainty the down terms were made for, rad/s.
+    #[must_use]
+    pub const fn speed_uncertainty_rad_s(&self) -> f32 {
+        self.u
+    }
+
+    /// Cell of speed magnitude `w` (`None` at or above the top or not finite):
+    /// ⌊ω² N / top²⌋ corrected by one comparison each way.
+    fn cell(&self, w: f32) -> Option<usize> {
+        if !(w >= 0.0 && w < self.top_rad_s) {
+            return None;
+        }
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let mut i = ((w * w * self.cell_scale) as usize).min(CELLS - 1);
+        if w < at(&self.speeds, i, 0.0) {
+            i = i.saturating_sub(1);
+        } else if i + 1 < CELLS && w >= at(&self.speeds, i + 1, 0.0) {
+            i += 1;
+        }
+        Some(i)
+    }
+
+    /// The largest bound √S over the lengths, from each length's Jacobi
+    /// integral `jacobi` at speed `w` (either sign): √max(0, E_ℓ − chord_ℓ(|w|)),
+    /// with one cell look-up and one square root. NaN when an input is.
+    #[must_use]
+    pub fn swing(&self, jacobi: &[f32; LENGTH_MODELS], w: f32) -> f32 {
+        let w = libm::fabsf(w);
+        let mut s = 0.0_f32;
+        let mut nan = w.is_nan();
+        if let Some(i) = self.cell(w) {
+            let (g0, g1) = (at(&self.speeds, i, 0.0), at(&self.speeds, i + 1, 0.0));
+            let t = (w - g0) / (g1 - g0);
+            for (v, &e) in self.v_eq.iter().zip(jacobi.iter()) {
+                let (v0, v1) = (at(v, i, 0.0), at(v, i + 1, 0.0));
+                let d = e - (v0 + (v1 - v0) * t);
+                nan |= d.is_nan();
+                s = larger(s, d);
+            }
+        } else {
+            for (v, &e) in self.v_eq.iter().zip(jacobi.iter()) {
+                let d = e - at(v, CELLS, 0.0);
+                nan |= d.is_nan();
+                s = larger(s, d);
+            }
+        }
+        if nan {
+            f32::NAN
+        } else {
+            crate::math::sqrt(s)
+        }
+    }
+
+    /// The least room over the lengths at speed magnitude `w`, a lower bound
+    /// of every length's √T_cap(w) (0 at or above the top), 1/s.
+    #[must_use]
+    pub fn room(&self, w: f32) -> f32 {
+        match self.cell(w) {
+            Some(i) => at(&self.room, i, 0.0),
+            None => 0.0,
+        }
+    }
+
+    /// ∫₀^w ½ G dω with the folded cell bounds (extended linearly above the top).
+    #[must_use]
+    pub fn growth_to(&self, w: f32) -> f32 {
+        match self.cell(w) {
+            Some(i) => {
+                at(&self.cumulative, i, 0.0)
+                    + at(&self.growth, i, 0.0) * (w - at(&self.speeds, i, 0.0))
+            }
+            None => {
+                at(&self.cumulative, CELLS, 0.0)
+                    + at(&self.growth, CELLS - 1, 0.0) * larger(w - self.top_rad_s, 0.0)
+            }
+        }
+    }
+
+    /// Largest ½ G over the cells, 1/s per rad/s.
+    #[must_use]
+    pub fn steepest_growth(&self) -> f32 {
+        self.growth.iter().copied().fold(0.0, larger)
+    }
+
+    /// Smallest slack along a move down from speed magnitude `hi` to `lo`
+    /// when √S has reached `start` at `hi` (as [`SwingEnvelope::down_slack`]):
+    /// the end cells directly, the whole cells between by a scan of their
+    /// precomputed terms (at most [`CELLS`] comparisons).
+    #[must_use]
+    pub fn down_slack(&self, start: f32, lo: f32, hi: f32) -> f32 {
+        let u = self.u;
+        let top_g = self.growth_to(hi);
+        let first = self.cell(lo).unwrap_or(CELLS);
+        let last = self.cell(hi).unwrap_or(CELLS);
+        // The piece starts at or above the top: no room there.
+        let mut slack = if last == CELLS { -start } else { f32::INFINITY };
+        let end_cell = |i: usize| {
+            let low = larger(at(&self.speeds, i, 0.0), lo);
+            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
+            self.room(high + u) - (start + top_g - self.growth_to(low))
+        };
+        if first < CELLS {
+            slack = least(slack, end_cell(first));
+        }
+        if last < CELLS && last > first {
+            slack = least(slack, end_cell(last));
+        }
+        let mut m = f32::INFINITY;
+        for &t in self.down.iter().take(last).skip(first + 1) {
+            m = least(m, t);
+        }
+        least(slack, m - start - top_g)
+    }
+
+    /// The same as [`down_slack`](Self::down_slack), cell by cell (the
+    /// reference the tests compare the table with).
+    #[must_use]
+    pub fn down_slack_by_cells(&self, start: f32, lo: f32, hi: f32) -> f32 {
+        let top_g = self.growth_to(hi);
+        let first = self.cell(lo).unwrap_or(CELLS);
+        let last = self.cell(hi).unwrap_or(CELLS);
+        let mut slack = if last == CELLS { -start } else { f32::INFINITY };
+        let mut i = first;
+        while i <= last && i < CELLS {
+            let low = larger(at(&self.speeds, i, 0.0), lo);
+            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
+            let grown = start + top_g - self.growth_to(low);
+            slack = least(slack, self.room(high + self.u) - grown);
+            i += 1;
+        }
+        slack
+    }
+}
