@@ -564,9 +564,10 @@ fn band_envelope_folds_the_three_lengths_conservatively() {
     };
     for suspension in [Suspension::Chain, Suspension::Rod] {
         let g = issue_ride(suspension);
-        let gov = SwingGovernor::new(&g, &GovernorParams::demo(&g, 50.0, 0.05)).unwrap();
+        let params = GovernorParams::demo(&g, 50.0, 0.05);
+        let gov = SwingGovernor::new(&g, &params).unwrap();
         let band = gov.band();
-        let envs = gov.envelopes();
+        let envs = &SwingGovernor::length_envelopes(&g, &params).unwrap();
         for env in envs {
             assert_eq!(env.top_rad_s(), band.top_rad_s());
         }

@@ -51,48 +51,70 @@ impl BandEnvelope {
     #[must_use]
     pub fn new(envelopes: &[SwingEnvelope; LENGTH_MODELS], u: f32) -> Self {
         let [e0, e1, e2] = envelopes;
-        let speeds = *e0.grid();
+        let mut band = Self::first(e0);
+        band.fold(1, e1);
+        band.fold(2, e2);
+        band.finish(u);
+        band
+    }
+
+    /// The band of one length (`envelope` as length 0 of every slot); fold
+    /// the others in with [`fold`](Self::fold), then call
+    /// [`finish`](Self::finish). One envelope at a time keeps the
+    /// construction's stack small (a 16 KiB Cortex-M0).
+    pub(crate) fn first(envelope: &SwingEnvelope) -> Self {
+        let speeds = *envelope.grid();
         let top_rad_s = at(&speeds, CELLS, 0.0);
-        let mut room = [0.0_f32; CELLS];
-        let mut growth = [0.0_f32; CELLS];
-        for (i, (r, g)) in room.iter_mut().zip(growth.iter_mut()).enumerate() {
-            *r = smaller(
-                at(e0.room_cells(), i, 0.0),
-                smaller(at(e1.room_cells(), i, 0.0), at(e2.room_cells(), i, 0.0)),
-            );
-            *g = larger(
-                at(e0.growth_cells(), i, f32::INFINITY),
-                larger(
-                    at(e1.growth_cells(), i, f32::INFINITY),
-                    at(e2.growth_cells(), i, f32::INFINITY),
-                ),
-            );
-        }
-        let mut cumulative = [0.0_f32; CELLS + 1];
-        let mut sum = 0.0_f32;
-        for (i, cu) in cumulative.iter_mut().enumerate() {
-            *cu = sum;
-            sum += at(&growth, i, 0.0) * (at(&speeds, i + 1, 0.0) - at(&speeds, i, 0.0));
-        }
+        let v_eq = *envelope.v_eq_grid();
         #[allow(clippy::cast_precision_loss)]
-        let mut band = Self {
+        let cell_scale = CELLS as f32 / (top_rad_s * top_rad_s);
+        Self {
             top_rad_s,
-            cell_scale: CELLS as f32 / (top_rad_s * top_rad_s),
+            cell_scale,
             speeds,
-            v_eq: [*e0.v_eq_grid(), *e1.v_eq_grid(), *e2.v_eq_grid()],
-            room,
-            growth,
-            cumulative,
-            u,
+            v_eq: [v_eq; LENGTH_MODELS],
+            room: *envelope.room_cells(),
+            growth: *envelope.growth_cells(),
+            cumulative: [0.0; CELLS + 1],
+            u: 0.0,
             down: [0.0; CELLS],
-        };
+        }
+    }
+
+    /// Folds length `slot` in: its V_eq for the chord, the least room and the
+    /// largest growth per cell (the envelope must be on the same grid).
+    pub(crate) fn fold(&mut self, slot: usize, envelope: &SwingEnvelope) {
+        if let Some(v) = self.v_eq.get_mut(slot) {
+            *v = *envelope.v_eq_grid();
+        }
+        for ((r, g), (&er, &eg)) in self.room.iter_mut().zip(self.growth.iter_mut()).zip(
+            envelope
+                .room_cells()
+                .iter()
+                .zip(envelope.growth_cells().iter()),
+        ) {
+            *r = smaller(*r, er);
+            // A NaN growth must not be skipped: it makes every bound fail.
+            *g = if eg > *g || eg.is_nan() { eg } else { *g };
+        }
+    }
+
+    /// The growth integral and the down-move terms for the speed uncertainty
+    /// `u` (rad/s), after the last [`fold`](Self::fold).
+    pub(crate) fn finish(&mut self, u: f32) {
+        let mut sum = 0.0_f32;
+        for (i, cu) in self.cumulative.iter_mut().enumerate() {
+            *cu = sum;
+            sum += at(&self.growth, i, 0.0)
+                * (at(&self.speeds, i + 1, 0.0) - at(&self.speeds, i, 0.0));
+        }
+        self.u = u;
         let mut down = [0.0_f32; CELLS];
         for (i, d) in down.iter_mut().enumerate() {
-            *d = band.room(at(&band.speeds, i + 1, 0.0) + u)
-                + band.growth_to(at(&band.speeds, i, 0.0));
+            *d = self.room(at(&self.speeds, i + 1, 0.0) + u)
+                + self.growth_to(at(&self.speeds, i, 0.0));
         }
-        band.down = down;
-        band
+        self.down = down;
     }
 
     /// Top of the common grid, rad/s.

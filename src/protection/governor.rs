@@ -14,6 +14,7 @@
 use crate::error::{check_range, ParamError};
 use crate::geometry::RideGeometry;
 use crate::request_governor::{GovernorDecision, GovernorInput, GovernorStatus, RequestGovernor};
+use crate::seat_model::SeatModel;
 use crate::units::Angle;
 
 use super::band::BandEnvelope;
@@ -93,8 +94,7 @@ pub struct Certificate {
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SwingGovernor {
-    envelopes: [SwingEnvelope; LENGTH_MODELS],
-    /// The three envelopes folded (least room, largest growth per cell):
+    /// The three lengths' envelopes folded (least room, largest growth per cell):
     /// what the per-tick certificate reads.
     band: BandEnvelope,
     /// Largest ½ G over the lengths and cells, 1/s per rad/s.
@@ -118,10 +118,10 @@ impl SwingGovernor {
     // several copies of it in the caller's frame (too much for a 16 KiB M0).
     #[inline(never)]
     pub fn new(geometry: &RideGeometry, params: &GovernorParams) -> Result<Self, ParamError> {
-        let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
+        check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
         let l = geometry.length_m();
         let l_min = check_range("length_min_m", params.length_min_m, 0.0, l)?;
-        let l_max = check_range("length_max_m", params.length_max_m, l, 100.0)?;
+        check_range("length_max_m", params.length_max_m, l, 100.0)?;
         if l_min <= 0.0 {
             return Err(ParamError::NotPositive("length_min_m"));
         }
@@ -151,31 +151,10 @@ impl SwingGovernor {
         if rate <= 0.0 {
             return Err(ParamError::NotPositive("target_rate_rad_s2"));
         }
-        let certified = Angle::from_deg(deg);
-        let short = geometry.with_length(l_min)?;
-        let long = geometry.with_length(l_max)?;
-        // One grid for the band, up to the lowest top of the three lengths.
-        let top = |g: &RideGeometry| {
-            g.speed_for_angle(certified)
-                .map(crate::units::AngularSpeed::rad_per_s)
-                .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))
-        };
-        let grid_top = smaller(top(&short)?, smaller(top(geometry)?, top(&long)?));
-        let envelopes = [
-            SwingEnvelope::with_grid_top(&short, certified, grid_top)?,
-            SwingEnvelope::with_grid_top(geometry, certified, grid_top)?,
-            SwingEnvelope::with_grid_top(&long, certified, grid_top)?,
-        ];
-        let models = [
-            *envelopes[0].model(),
-            *envelopes[1].model(),
-            *envelopes[2].model(),
-        ];
-        let band = BandEnvelope::new(&envelopes, params.speed_uncertainty_rad_s);
+        let (band, models) = band_and_models(geometry, params)?;
         let steepest = band.steepest_growth();
         Ok(Self {
             estimator: SwingEstimator::new(models, params.estimator_period_s, params.rest_hold_s),
-            envelopes,
             band,
             steepest,
             params: *params,
@@ -214,11 +193,24 @@ impl SwingGovernor {
         &self.estimator
     }
 
-    /// The envelopes (shortest, nominal, longest length), on the band's
-    /// common grid.
-    #[must_use]
-    pub const fn envelopes(&self) -> &[SwingEnvelope; LENGTH_MODELS] {
-        &self.envelopes
+    /// The envelopes of the shortest, nominal and longest length of
+    /// `params`' band for `geometry`, on one grid up to the lowest of their
+    /// top speeds: what [`new`](Self::new) folds into the band's envelope
+    /// (not kept by the governor).
+    ///
+    /// # Errors
+    /// [`ParamError`] naming the refused parameter.
+    #[inline(never)]
+    pub fn length_envelopes(
+        geometry: &RideGeometry,
+        params: &GovernorParams,
+    ) -> Result<[SwingEnvelope; LENGTH_MODELS], ParamError> {
+        let (short, long, certified, grid_top) = band_grid(geometry, params)?;
+        Ok([
+            SwingEnvelope::with_grid_top(&short, certified, grid_top)?,
+            SwingEnvelope::with_grid_top(geometry, certified, grid_top)?,
+            SwingEnvelope::with_grid_top(&long, certified, grid_top)?,
+        ])
     }
 
     /// The band's folded envelope (what the certificate reads).
@@ -237,10 +229,7 @@ impl SwingGovernor {
     /// (the smallest of the top speeds).
     #[must_use]
     pub fn top_rad_s(&self) -> f32 {
-        self.envelopes
-            .iter()
-            .map(SwingEnvelope::top_rad_s)
-            .fold(f32::INFINITY, f32::min)
+        self.band.top_rad_s()
     }
 
     /// Slack of a controlled stop to zero from the commanded state (`v`,
@@ -385,6 +374,63 @@ impl SwingGovernor {
             status: GovernorStatus::Restricting,
         }
     }
+}
+
+/// The shortest and longest geometry of the band, the certified angle and
+/// the top of the common grid (the lowest of the three top speeds).
+fn band_grid(
+    geometry: &RideGeometry,
+    params: &GovernorParams,
+) -> Result<(RideGeometry, RideGeometry, Angle, f32), ParamError> {
+    let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
+    let l = geometry.length_m();
+    let l_min = check_range("length_min_m", params.length_min_m, 0.0, l)?;
+    let l_max = check_range("length_max_m", params.length_max_m, l, 100.0)?;
+    if l_min <= 0.0 {
+        return Err(ParamError::NotPositive("length_min_m"));
+    }
+    let certified = Angle::from_deg(deg);
+    let short = geometry.with_length(l_min)?;
+    let long = geometry.with_length(l_max)?;
+    let top = |g: &RideGeometry| {
+        g.speed_for_angle(certified)
+            .map(crate::units::AngularSpeed::rad_per_s)
+            .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))
+    };
+    let grid_top = smaller(top(&short)?, smaller(top(geometry)?, top(&long)?));
+    Ok((short, long, certified, grid_top))
+}
+
+/// One length's envelope on the common grid (its own frame: the M0's stack).
+#[inline(never)]
+fn envelope_on(
+    geometry: &RideGeometry,
+    certified: Angle,
+    grid_top: f32,
+) -> Result<SwingEnvelope, ParamError> {
+    SwingEnvelope::with_grid_top(geometry, certified, grid_top)
+}
+
+/// The band's folded envelope and the three lengths' models, building one
+/// envelope at a time.
+#[inline(never)]
+fn band_and_models(
+    geometry: &RideGeometry,
+    params: &GovernorParams,
+) -> Result<(BandEnvelope, [SeatModel; LENGTH_MODELS]), ParamError> {
+    let (short, long, certified, grid_top) = band_grid(geometry, params)?;
+    let e = envelope_on(&short, certified, grid_top)?;
+    let mut models = [*e.model(); LENGTH_MODELS];
+    let mut band = BandEnvelope::first(&e);
+    for (slot, g) in [(1, geometry), (2, &long)] {
+        let e = envelope_on(g, certified, grid_top)?;
+        if let Some(m) = models.get_mut(slot) {
+            *m = *e.model();
+        }
+        band.fold(slot, &e);
+    }
+    band.finish(params.speed_uncertainty_rad_s);
+    Ok((band, models))
 }
 
 /// The part of a certificate every candidate target shares.
