@@ -151,10 +151,16 @@ impl SwingEstimator {
         }
         let span = self.pending_s;
         let alpha = (measured_rad_s - self.last_speed) / span;
-        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
-        let n = (libm::ceilf(span / SUB_STEP_S) as u32).clamp(1, MAX_SUB_STEPS);
-        #[allow(clippy::cast_precision_loss)]
-        let h = span / n as f32;
+        // One sub-step when the span fits (the 100 Hz case), else ⌈span / sub-step⌉.
+        let (n, h) = if span <= SUB_STEP_S {
+            (1, span)
+        } else {
+            #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+            let n = (libm::ceilf(span / SUB_STEP_S) as u32).clamp(1, MAX_SUB_STEPS);
+            #[allow(clippy::cast_precision_loss)]
+            let h = span / n as f32;
+            (n, h)
+        };
         if h > MAX_STEP_S {
             return Err(self.latch(EstimatorFault::NotFinite));
         }

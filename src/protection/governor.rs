@@ -476,7 +476,7 @@ impl RequestGovernor for SwingGovernor {
         let Some(measured) = input.measured_rad_s else {
             return fault(input);
         };
-        let dt = input.dt_s.min(MAX_ADVANCE_S);
+        let dt = smaller(input.dt_s, MAX_ADVANCE_S);
         let stepped = match self.estimator.advance(measured, dt) {
             Ok(stepped) => stepped,
             Err(EstimatorFault::RestNotConfirmed | EstimatorFault::NotFinite)

@@ -17,7 +17,8 @@
 //! hinge carries the force along y), which leaves θ̈ = ω²(a + sin θ) cos θ
 //! − b sin θ, the rod equation of [`SeatModel`]. Linear damping acts on the
 //! link's velocity (−c ṅ; the angle form damps θ̇ and ψ̇, the same for small
-//! tangential swing). The estimator integrates the undamped model.
+//! tangential swing), applied by splitting after each undamped step (first
+//! order in c·dt). The estimator integrates the undamped model.
 //!
 //! Why this form: a step of the angle form evaluates two sine/cosine pairs
 //! per Runge–Kutta stage (eight per step), this one none; the Jacobi integral
@@ -137,13 +138,7 @@ impl LinkModel {
         };
         let fz = -self.b;
         let lam = fx * n[0] + fy * n[1] + fz * n[2] + dot(v, v);
-        let acc = [fx - lam * n[0], fy - lam * n[1], fz - lam * n[2]];
-        if self.c == 0.0 {
-            // The estimator's undamped models: six operations fewer per stage.
-            acc
-        } else {
-            add(&acc, v, -self.c)
-        }
+        [fx - lam * n[0], fy - lam * n[1], fz - lam * n[2]]
     }
 
     /// One RK4 step of length `dt` (s) with the shaft speed going linearly
@@ -172,10 +167,16 @@ impl LinkModel {
         // Back onto the sphere, and the rate into its tangent plane.
         let inv = 1.0 / crate::math::sqrt(dot(&n, &n));
         let n = [n[0] * inv, n[1] * inv, n[2] * inv];
-        let next = LinkState {
-            v: add(&v, &n, -dot(&v, &n)),
-            n,
+        let v = add(&v, &n, -dot(&v, &n));
+        // Damping (none in the governor's models) by splitting: the rate
+        // decays by 1/(1 + c·dt) after the undamped step (first order in c·dt).
+        let v = if self.c > 0.0 {
+            let k = 1.0 / (1.0 + self.c * dt);
+            [v[0] * k, v[1] * k, v[2] * k]
+        } else {
+            v
         };
+        let next = LinkState { n, v };
         next.is_finite().then_some(next)
     }
 
