@@ -595,7 +595,12 @@ fn band_envelope_folds_the_three_lengths_conservatively() {
             ];
             let swing = band.swing(&jacobi, w);
             for env in envs {
-                assert!(band.room(w) <= env.room(w), "room at {w}");
+                assert!(
+                    band.room(w) <= env.room(w),
+                    "room at {w}: {} > {}",
+                    band.room(w),
+                    env.room(w)
+                );
                 let (lo, hi) = (w.min(w2), w.max(w2));
                 assert!(
                     band.growth_to(hi) - band.growth_to(lo)
@@ -643,4 +648,48 @@ fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
             }
         }
     }
+}
+
+#[test]
+fn governor_lowers_from_its_highest_admitted_speed() {
+    // The reserve kept on every ascent (docs/dynamic_protection.md, "Reserve for
+    // lowering") must let the governor lower from the highest speed it admitted: a
+    // request above what it admits for 200 s, then 20°; the command must reach the new
+    // request within 60 s (demo ride of the cost table; hand calculation, common
+    // practice: at the governor's 0.02 rad/s² the move itself takes about 15 s).
+    let g = RideGeometry::new(3.4, 5.8, Suspension::Chain, Gravity::STANDARD).unwrap();
+    let rig = rig(g, 45.0);
+    let v20 = f64::from(
+        g.speed_for_angle(Angle::from_deg(20.0))
+            .unwrap()
+            .rad_per_s(),
+    );
+    let v40 = f64::from(
+        g.speed_for_angle(Angle::from_deg(40.0))
+            .unwrap()
+            .rad_per_s(),
+    );
+    let scenario = Scenario {
+        requests: vec![(0.0, v40), (200.0, v20)],
+        duration_s: 260.0,
+        stop_at_s: None,
+    };
+    let run = run_loop(&rig, &scenario, true, 0.0).unwrap();
+    assert_eq!(run.fault_ticks, 0);
+    let high = run
+        .profile
+        .iter()
+        .filter(|p| p.0 <= 200.0)
+        .map(|p| p.1)
+        .fold(0.0, f64::max);
+    assert!(high > 0.9 * v40, "never got near the request: {high}");
+    let done = run
+        .profile
+        .iter()
+        .find(|p| p.0 >= 200.0 && (p.1 - v20).abs() <= 1e-3 * v20)
+        .map(|p| p.0 - 200.0);
+    assert!(
+        done.is_some_and(|d| d < 60.0),
+        "lowering from {high} rad/s: {done:?}"
+    );
 }

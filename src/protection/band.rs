@@ -5,9 +5,10 @@
 //! Soundness (docs/dynamic_protection.md, Step 5): for every length ℓ of the
 //! band, √S_ℓ ≤ max_ℓ √S_ℓ, ½G_ℓ ≤ max_ℓ ½G_ℓ and √T_cap,ℓ ≥ min_ℓ √T_cap,ℓ,
 //! so a path the folded tables certify is certified for each length. The room
-//! of a cell is its value at the cell's upper end: T_cap falls with the speed
-//! (dT_cap/dω = −ω (c² − ρs²) ≤ 0, as ρs = a + sin θs ≤ c below the top), so
-//! that is the least room over the cell.
+//! at a speed is the least over the lengths of each length's tangent bound
+//! (as [`SwingEnvelope::room`]), never below the cell's floor: the least room
+//! at the cell's upper end (T_cap falls with the speed, dT_cap/dω =
+//! −ω (c² − ρs²) ≤ 0, as ρs = a + sin θs ≤ c below the top).
 
 use crate::math::{larger, least, smaller};
 
@@ -32,7 +33,12 @@ pub struct BandEnvelope {
     speeds: [f32; CELLS + 1],
     /// Per length, V_eq at the grid speeds (its chords bound V_eq from below).
     v_eq: [[f32; CELLS + 1]; LENGTH_MODELS],
-    /// Per cell, the least room over the lengths at the cell's upper end, 1/s.
+    /// Per length, dV_eq/dω at the grid speeds (its tangents bound V_eq from above).
+    v_eq_slope: [[f32; CELLS + 1]; LENGTH_MODELS],
+    /// Per length, (b cos φc, ½ c²): E_adm(ω) = −b cos φc − ½ c² ω².
+    cone: [(f32, f32); LENGTH_MODELS],
+    /// Per cell, the least room over the lengths at the cell's upper end, 1/s
+    /// (a floor under [`room`](Self::room) within the cell).
     room: [f32; CELLS],
     /// Per cell, the largest ½ G over the lengths, 1/s per rad/s.
     growth: [f32; CELLS],
@@ -66,6 +72,7 @@ impl BandEnvelope {
         let speeds = *envelope.grid();
         let top_rad_s = at(&speeds, CELLS, 0.0);
         let v_eq = *envelope.v_eq_grid();
+        let v_eq_slope = *envelope.v_eq_slope_grid();
         #[allow(clippy::cast_precision_loss)]
         let cell_scale = CELLS as f32 / (top_rad_s * top_rad_s);
         Self {
@@ -73,6 +80,8 @@ impl BandEnvelope {
             cell_scale,
             speeds,
             v_eq: [v_eq; LENGTH_MODELS],
+            v_eq_slope: [v_eq_slope; LENGTH_MODELS],
+            cone: [envelope.cone(); LENGTH_MODELS],
             room: *envelope.room_cells(),
             growth: *envelope.growth_cells(),
             cumulative: [0.0; CELLS + 1],
@@ -84,8 +93,14 @@ impl BandEnvelope {
     /// Folds length `slot` in: its V_eq for the chord, the least room and the
     /// largest growth per cell (the envelope must be on the same grid).
     pub(crate) fn fold(&mut self, slot: usize, envelope: &SwingEnvelope) {
-        if let Some(v) = self.v_eq.get_mut(slot) {
+        if let (Some(v), Some(d), Some(c)) = (
+            self.v_eq.get_mut(slot),
+            self.v_eq_slope.get_mut(slot),
+            self.cone.get_mut(slot),
+        ) {
             *v = *envelope.v_eq_grid();
+            *d = *envelope.v_eq_slope_grid();
+            *c = envelope.cone();
         }
         for ((r, g), (&er, &eg)) in self.room.iter_mut().zip(self.growth.iter_mut()).zip(
             envelope
@@ -145,45 +160,103 @@ impl BandEnvelope {
         Some(i)
     }
 
-    /// The largest bound √S over the lengths, from each length's Jacobi
+    /// The bounds √S of the three lengths, from each length's Jacobi
     /// integral `jacobi` at speed `w` (either sign): √max(0, E_ℓ − chord_ℓ(|w|)),
-    /// with one cell look-up and one square root. NaN when an input is.
+    /// with one cell look-up. NaN where an input is.
+    #[must_use]
+    pub fn swings(&self, jacobi: &[f32; LENGTH_MODELS], w: f32) -> [f32; LENGTH_MODELS] {
+        let w = libm::fabsf(w);
+        let cell = self.cell(w);
+        let (i, t) = match cell {
+            Some(i) => {
+                let (g0, g1) = (at(&self.speeds, i, 0.0), at(&self.speeds, i + 1, 0.0));
+                (i, (w - g0) / (g1 - g0))
+            }
+            // At or above the top (or NaN): the chord's value at the top.
+            None => (CELLS - 1, if w.is_nan() { w } else { 1.0 }),
+        };
+        let mut out = [0.0_f32; LENGTH_MODELS];
+        for ((o, v), &e) in out.iter_mut().zip(self.v_eq.iter()).zip(jacobi.iter()) {
+            let (v0, v1) = (at(v, i, 0.0), at(v, i + 1, 0.0));
+            let d = e - (v0 + (v1 - v0) * t);
+            // NaN stays NaN (the certificate then fails).
+            *o = crate::math::sqrt(if d > 0.0 || d.is_nan() { d } else { 0.0 });
+        }
+        out
+    }
+
+    /// The largest of [`swings`](Self::swings), NaN when one is.
     #[must_use]
     pub fn swing(&self, jacobi: &[f32; LENGTH_MODELS], w: f32) -> f32 {
-        let w = libm::fabsf(w);
-        let mut s = 0.0_f32;
-        let mut nan = w.is_nan();
-        if let Some(i) = self.cell(w) {
-            let (g0, g1) = (at(&self.speeds, i, 0.0), at(&self.speeds, i + 1, 0.0));
-            let t = (w - g0) / (g1 - g0);
-            for (v, &e) in self.v_eq.iter().zip(jacobi.iter()) {
-                let (v0, v1) = (at(v, i, 0.0), at(v, i + 1, 0.0));
-                let d = e - (v0 + (v1 - v0) * t);
-                nan |= d.is_nan();
-                s = larger(s, d);
-            }
-        } else {
-            for (v, &e) in self.v_eq.iter().zip(jacobi.iter()) {
-                let d = e - at(v, CELLS, 0.0);
-                nan |= d.is_nan();
-                s = larger(s, d);
-            }
-        }
-        if nan {
+        let [a, b, c] = self.swings(jacobi, w);
+        if a.is_nan() || b.is_nan() || c.is_nan() {
             f32::NAN
         } else {
-            crate::math::sqrt(s)
+            larger(a, larger(b, c))
         }
     }
 
+    /// min over the lengths of (room_ℓ(w) − `swings`_ℓ), 1/s: each length's
+    /// tangent bound of its room paired with its own swing bound (tighter than
+    /// the least room minus the largest swing). −`swings` at or above the top.
+    #[must_use]
+    pub fn room_less(&self, w: f32, swings: &[f32; LENGTH_MODELS]) -> f32 {
+        let Some(i) = self.cell(w) else {
+            let [a, b, c] = *swings;
+            return least(-a, least(-b, -c));
+        };
+        let (d0, d1) = (
+            w - at(&self.speeds, i, 0.0),
+            w - at(&self.speeds, i + 1, 0.0),
+        );
+        let mut slack = f32::INFINITY;
+        for (((v, d), &(c0, c1)), &s) in self
+            .v_eq
+            .iter()
+            .zip(self.v_eq_slope.iter())
+            .zip(self.cone.iter())
+            .zip(swings.iter())
+        {
+            let t0 = at(v, i, 0.0) + at(d, i, 0.0) * d0;
+            let t1 = at(v, i + 1, 0.0) + at(d, i + 1, 0.0) * d1;
+            let e_adm = -c0 - c1 * w * w;
+            let room = crate::math::sqrt(larger(e_adm - smaller(t0, t1), 0.0));
+            slack = least(slack, room - s);
+        }
+        slack
+    }
+
     /// The least room over the lengths at speed magnitude `w`, a lower bound
-    /// of every length's √T_cap(w) (0 at or above the top), 1/s.
+    /// of every length's √T_cap(w) (0 at or above the top), 1/s: per length
+    /// E_adm in closed form minus the lower of the two tangents of V_eq at the
+    /// cell's ends (V_eq is concave, so each tangent lies above it), the least
+    /// of the three, never below the cell's floor; one square root.
     #[must_use]
     pub fn room(&self, w: f32) -> f32 {
-        match self.cell(w) {
-            Some(i) => at(&self.room, i, 0.0),
-            None => 0.0,
+        let Some(i) = self.cell(w) else {
+            return 0.0;
+        };
+        let (d0, d1) = (
+            w - at(&self.speeds, i, 0.0),
+            w - at(&self.speeds, i + 1, 0.0),
+        );
+        let mut t_cap = f32::INFINITY;
+        for ((v, d), &(c0, c1)) in self
+            .v_eq
+            .iter()
+            .zip(self.v_eq_slope.iter())
+            .zip(self.cone.iter())
+        {
+            let t0 = at(v, i, 0.0) + at(d, i, 0.0) * d0;
+            let t1 = at(v, i + 1, 0.0) + at(d, i + 1, 0.0) * d1;
+            // Same operations, in the same order, as SwingEnvelope::room.
+            let e_adm = -c0 - c1 * w * w;
+            t_cap = smaller(t_cap, e_adm - smaller(t0, t1));
         }
+        larger(
+            crate::math::sqrt(larger(t_cap, 0.0)),
+            at(&self.room, i, 0.0),
+        )
     }
 
     /// ∫₀^w ½ G dω with the folded cell bounds (extended linearly above the top).
@@ -235,6 +308,48 @@ impl BandEnvelope {
             m = least(m, t);
         }
         least(slack, m - start - top_g)
+    }
+
+    /// As [`down_slack`](Self::down_slack) with the present swing bounds of
+    /// the lengths kept apart: `start` is the growth so far (without the
+    /// present swing), the end cells pair each length's room with its own
+    /// swing ([`room_less`](Self::room_less)), the whole cells between take the
+    /// folded terms less the largest swing (a lower bound of the same).
+    #[must_use]
+    pub fn down_slack_paired(
+        &self,
+        swings: &[f32; LENGTH_MODELS],
+        start: f32,
+        lo: f32,
+        hi: f32,
+    ) -> f32 {
+        let u = self.u;
+        let [a, b, c] = *swings;
+        let largest = larger(a, larger(b, c));
+        let top_g = self.growth_to(hi);
+        let first = self.cell(lo).unwrap_or(CELLS);
+        let last = self.cell(hi).unwrap_or(CELLS);
+        let mut slack = if last == CELLS {
+            -(start + largest)
+        } else {
+            f32::INFINITY
+        };
+        let end_cell = |i: usize| {
+            let low = larger(at(&self.speeds, i, 0.0), lo);
+            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
+            self.room_less(high + u, swings) - (start + top_g - self.growth_to(low))
+        };
+        if first < CELLS {
+            slack = least(slack, end_cell(first));
+        }
+        if last < CELLS && last > first {
+            slack = least(slack, end_cell(last));
+        }
+        let mut m = f32::INFINITY;
+        for &t in self.down.iter().take(last).skip(first + 1) {
+            m = least(m, t);
+        }
+        least(slack, m - largest - start - top_g)
     }
 
     /// The same as [`down_slack`](Self::down_slack), cell by cell (the

@@ -240,6 +240,16 @@ impl SwingEnvelope {
         &self.v_eq
     }
 
+    /// dV_eq/dω at the grid speeds, 1/s.
+    pub(crate) const fn v_eq_slope_grid(&self) -> &[f32; CELLS + 1] {
+        &self.v_eq_slope
+    }
+
+    /// b cos φc and ½ c²: E_adm(ω) = −b cos φc − ½ c² ω².
+    pub(crate) const fn cone(&self) -> (f32, f32) {
+        self.cone
+    }
+
     /// Per cell, √T_cap at its upper end (the least room over the cell), 1/s.
     pub(crate) const fn room_cells(&self) -> &[f32; CELLS] {
         &self.room

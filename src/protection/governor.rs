@@ -250,9 +250,10 @@ impl SwingGovernor {
         self.finish(&self.prefix(measured, v, v_ext), v_ext, target)
     }
 
-    /// What every candidate target shares: the grown √S and the smallest
+    /// What every candidate target shares: the growth of √S and the smallest
     /// slack from the present state through the braking of the acceleration
-    /// to `v_ext`, on the band's folded envelope.
+    /// to `v_ext`, on the band's envelope, each length's room paired with its
+    /// own present swing bound.
     fn prefix(&self, measured: f32, v: f32, v_ext: f32) -> Prefix {
         let band = &self.band;
         let u = self.params.speed_uncertainty_rad_s;
@@ -265,21 +266,27 @@ impl SwingGovernor {
             models[1].jacobi(&states[1], m),
             models[2].jacobi(&states[2], m),
         ];
-        let s0 = band.swing(&jacobi, m);
+        let swings = band.swings(&jacobi, m);
         // The measured and the commanded speed may differ, and the true speed
         // from both: count the gap and the uncertainty once, as travel already
         // made. The room is read u higher throughout.
         let g_v = band.growth_to(va);
         let gap = libm::fabsf(band.growth_to(m) - g_v);
         let spread = band.growth_to(va + u) - g_v;
-        let mut grown = s0 + gap + spread;
-        let slack = band.room(va + u) - grown;
-        let slack = least(slack, piece(band, &mut grown, v, v_ext, u));
+        let mut grown = gap + spread;
+        let slack = band.room_less(va + u, &swings) - grown;
+        let slack = least(slack, piece(band, &swings, &mut grown, v, v_ext, u));
+        let [a, b, c] = swings;
         Prefix {
             grown,
             slack,
             growth_ext: band.growth_to(libm::fabsf(v_ext)),
-            swing: s0,
+            swings,
+            swing: if a.is_nan() || b.is_nan() || c.is_nan() {
+                f32::NAN
+            } else {
+                larger(a, larger(b, c))
+            },
         }
     }
 
@@ -292,10 +299,11 @@ impl SwingGovernor {
         let (m1, m2) = (libm::fabsf(v_ext), libm::fabsf(target));
         let last = if same_direction && m2 >= m1 {
             // Up: √S grows, the room shrinks; the end is the binding point.
-            band.room(m2 + u) - (prefix.grown + band.growth_to(m2) - prefix.growth_ext)
+            band.room_less(m2 + u, &prefix.swings)
+                - (prefix.grown + band.growth_to(m2) - prefix.growth_ext)
         } else {
             let mut r = prefix.grown;
-            piece(band, &mut r, v_ext, target, u)
+            piece(band, &prefix.swings, &mut r, v_ext, target, u)
         };
         let slack = least(prefix.slack, last);
         if slack.is_nan() {
@@ -435,37 +443,53 @@ fn band_and_models(
 
 /// The part of a certificate every candidate target shares.
 struct Prefix {
-    /// √S grown up to the braking point, 1/s.
+    /// Growth of √S up to the braking point (without the present swing), 1/s.
     grown: f32,
     /// Smallest slack up to the braking point, 1/s.
     slack: f32,
     /// growth_to(|v_ext|).
     growth_ext: f32,
-    /// Largest √S bound of the present state over the lengths, 1/s.
+    /// Present swing bound √S of each length, 1/s.
+    swings: [f32; LENGTH_MODELS],
+    /// The largest of them, 1/s.
     swing: f32,
 }
 
 /// One piece of the path from signed speed `from` to `to`: adds its growth to
 /// `r` and returns the smallest slack along it.
-fn piece(band: &BandEnvelope, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
+fn piece(
+    band: &BandEnvelope,
+    swings: &[f32; LENGTH_MODELS],
+    r: &mut f32,
+    from: f32,
+    to: f32,
+    u: f32,
+) -> f32 {
     // Split at zero when the direction of rotation changes.
     if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
-        let first = magnitude_piece(band, r, libm::fabsf(from), 0.0, u);
-        let second = magnitude_piece(band, r, 0.0, libm::fabsf(to), u);
+        let first = magnitude_piece(band, swings, r, libm::fabsf(from), 0.0, u);
+        let second = magnitude_piece(band, swings, r, 0.0, libm::fabsf(to), u);
         return least(first, second);
     }
-    magnitude_piece(band, r, libm::fabsf(from), libm::fabsf(to), u)
+    magnitude_piece(band, swings, r, libm::fabsf(from), libm::fabsf(to), u)
 }
 
-fn magnitude_piece(band: &BandEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -> f32 {
+fn magnitude_piece(
+    band: &BandEnvelope,
+    swings: &[f32; LENGTH_MODELS],
+    r: &mut f32,
+    m1: f32,
+    m2: f32,
+    u: f32,
+) -> f32 {
     if m2 >= m1 {
         // Up: √S grows, the room shrinks; the end is the binding point.
         *r += band.growth_to(m2) - band.growth_to(m1);
-        band.room(m2 + u) - *r
+        band.room_less(m2 + u, swings) - *r
     } else {
         // Down: the room grows back as the speed falls, √S may grow too;
         // checked cell by cell (whole cells from the band's table).
-        let slack = band.down_slack(*r, m2, m1);
+        let slack = band.down_slack_paired(swings, *r, m2, m1);
         *r += band.growth_to(m1) - band.growth_to(m2);
         slack
     }
