@@ -56,43 +56,47 @@ impl BandEnvelope {
     /// uncertainty `u` (rad/s).
     #[must_use]
     pub fn new(envelopes: &[SwingEnvelope; LENGTH_MODELS], u: f32) -> Self {
-        let [e0, e1, e2] = envelopes;
-        let mut band = Self::first(e0);
-        band.fold(1, e1);
-        band.fold(2, e2);
+        let mut band = Self::empty();
+        for (slot, e) in envelopes.iter().enumerate() {
+            band.fold(slot, e);
+        }
         band.finish(u);
         band
     }
 
-    /// The band of one length (`envelope` as length 0 of every slot); fold
-    /// the others in with [`fold`](Self::fold), then call
-    /// [`finish`](Self::finish). One envelope at a time keeps the
-    /// construction's stack small (a 16 KiB Cortex-M0).
-    pub(crate) fn first(envelope: &SwingEnvelope) -> Self {
-        let speeds = *envelope.grid();
-        let top_rad_s = at(&speeds, CELLS, 0.0);
-        let v_eq = *envelope.v_eq_grid();
-        let v_eq_slope = *envelope.v_eq_slope_grid();
-        #[allow(clippy::cast_precision_loss)]
-        let cell_scale = CELLS as f32 / (top_rad_s * top_rad_s);
+    /// All zeros: fold the lengths in with [`fold`](Self::fold) (slot 0
+    /// first), then call [`finish`](Self::finish). Filled in place, one
+    /// envelope at a time, to keep the construction's stack small (a 16 KiB
+    /// Cortex-M0).
+    pub(crate) const fn empty() -> Self {
         Self {
-            top_rad_s,
-            cell_scale,
-            speeds,
-            v_eq: [v_eq; LENGTH_MODELS],
-            v_eq_slope: [v_eq_slope; LENGTH_MODELS],
-            cone: [envelope.cone(); LENGTH_MODELS],
-            room: *envelope.room_cells(),
-            growth: *envelope.growth_cells(),
+            top_rad_s: 0.0,
+            cell_scale: 0.0,
+            speeds: [0.0; CELLS + 1],
+            v_eq: [[0.0; CELLS + 1]; LENGTH_MODELS],
+            v_eq_slope: [[0.0; CELLS + 1]; LENGTH_MODELS],
+            cone: [(0.0, 0.0); LENGTH_MODELS],
+            room: [0.0; CELLS],
+            growth: [0.0; CELLS],
             cumulative: [0.0; CELLS + 1],
             u: 0.0,
             down: [0.0; CELLS],
         }
     }
 
-    /// Folds length `slot` in: its V_eq for the chord, the least room and the
-    /// largest growth per cell (the envelope must be on the same grid).
+    /// Folds length `slot` in: its V_eq and tangents, the least room and the
+    /// largest growth per cell (slot 0 sets the grid; every envelope must be on
+    /// the same grid).
     pub(crate) fn fold(&mut self, slot: usize, envelope: &SwingEnvelope) {
+        if slot == 0 {
+            self.speeds = *envelope.grid();
+            self.top_rad_s = at(&self.speeds, CELLS, 0.0);
+            #[allow(clippy::cast_precision_loss)]
+            let scale = CELLS as f32 / (self.top_rad_s * self.top_rad_s);
+            self.cell_scale = scale;
+            self.room = *envelope.room_cells();
+            self.growth = *envelope.growth_cells();
+        }
         if let (Some(v), Some(d), Some(c)) = (
             self.v_eq.get_mut(slot),
             self.v_eq_slope.get_mut(slot),

@@ -412,8 +412,9 @@ impl SwingEnvelope {
     }
 }
 
-/// Most azimuth intervals [`sampled_k_with`] takes.
-pub const MAX_AZIMUTH: usize = 256;
+/// Most azimuth intervals [`sampled_k_with`] takes (its table of cos β lives on
+/// the stack of the envelope's construction: kept small for a 16 KiB Cortex-M0).
+pub const MAX_AZIMUTH: usize = 128;
 
 /// Largest |ρ² − ρs²| / √(V − V_eq) over a sample of the cone φ ≤ φc
 /// (outward half; the potential is symmetric in the azimuth), at speed `w`,

@@ -151,7 +151,8 @@ impl SwingGovernor {
         if rate <= 0.0 {
             return Err(ParamError::NotPositive("target_rate_rad_s2"));
         }
-        let (band, models) = band_and_models(geometry, params)?;
+        let mut band = BandEnvelope::empty();
+        let models = fill_band(&mut band, geometry, params)?;
         let steepest = band.steepest_growth();
         Ok(Self {
             estimator: SwingEstimator::new(models, params.estimator_period_s, params.rest_hold_s),
@@ -419,18 +420,17 @@ fn envelope_on(
     SwingEnvelope::with_grid_top(geometry, certified, grid_top)
 }
 
-/// The band's folded envelope and the three lengths' models, building one
-/// envelope at a time.
+/// Folds the three lengths' envelopes into `band` (in place, one envelope at
+/// a time: the M0's stack) and returns the lengths' models.
 #[inline(never)]
-fn band_and_models(
+fn fill_band(
+    band: &mut BandEnvelope,
     geometry: &RideGeometry,
     params: &GovernorParams,
-) -> Result<(BandEnvelope, [SeatModel; LENGTH_MODELS]), ParamError> {
+) -> Result<[SeatModel; LENGTH_MODELS], ParamError> {
     let (short, long, certified, grid_top) = band_grid(geometry, params)?;
-    let e = envelope_on(&short, certified, grid_top)?;
-    let mut models = [*e.model(); LENGTH_MODELS];
-    let mut band = BandEnvelope::first(&e);
-    for (slot, g) in [(1, geometry), (2, &long)] {
+    let mut models = [SeatModel::new(geometry, 0.0)?; LENGTH_MODELS];
+    for (slot, g) in [(0, &short), (1, geometry), (2, &long)] {
         let e = envelope_on(g, certified, grid_top)?;
         if let Some(m) = models.get_mut(slot) {
             *m = *e.model();
@@ -438,7 +438,7 @@ fn band_and_models(
         band.fold(slot, &e);
     }
     band.finish(params.speed_uncertainty_rad_s);
-    Ok((band, models))
+    Ok(models)
 }
 
 /// The part of a certificate every candidate target shares.
