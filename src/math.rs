@@ -47,6 +47,46 @@ mod hardware {
     }
 }
 
+/// The smaller of `x` and `y` by one comparison (`f32::min` is a call to
+/// `fminf` on Armv7-M, which has no IEEE minNum instruction). A NaN `y`
+/// gives `x`, as `f32::min` does; a NaN `x` gives `y` only when `y` is not
+/// larger (callers keep `x` finite or check the result).
+#[inline(always)]
+#[must_use]
+pub fn smaller(x: f32, y: f32) -> f32 {
+    if y < x {
+        y
+    } else {
+        x
+    }
+}
+
+/// The smaller of `x` and `y`, NaN when either is NaN (for slack minima:
+/// a NaN anywhere must reach the final check, not be skipped as `f32::min`
+/// and [`smaller`] skip it).
+#[inline(always)]
+#[must_use]
+pub fn least(x: f32, y: f32) -> f32 {
+    if x < y {
+        x
+    } else if y <= x {
+        y
+    } else {
+        f32::NAN
+    }
+}
+
+/// The larger of `x` and `y` by one comparison (see [`smaller`]).
+#[inline(always)]
+#[must_use]
+pub fn larger(x: f32, y: f32) -> f32 {
+    if y > x {
+        y
+    } else {
+        x
+    }
+}
+
 /// 4/π, to find the octant.
 const FOUR_OVER_PI: f32 = 1.273_239_5;
 /// π/4 split in three parts for Cody–Waite reduction (Cephes `sinf.c`).

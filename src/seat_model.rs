@@ -117,6 +117,26 @@ impl SeatModel {
         })
     }
 
+    /// r0 / L.
+    pub(crate) const fn offset_ratio(&self) -> f32 {
+        self.offset_ratio
+    }
+
+    /// g / L, 1/s².
+    pub(crate) const fn gravity_ratio(&self) -> f32 {
+        self.gravity_ratio
+    }
+
+    /// Linear damping rate, 1/s.
+    pub(crate) const fn damping_per_s(&self) -> f32 {
+        self.damping_per_s
+    }
+
+    /// `true` for chains (two swing directions), `false` for hinged rods.
+    pub(crate) const fn is_chain(&self) -> bool {
+        self.chain
+    }
+
     /// Time derivative of `state` at shaft speed `w` (rad/s) and acceleration
     /// `alpha` (rad/s²).
     #[must_use]

@@ -10,7 +10,9 @@
 )]
 
 use swingdrive::protection::closed_loop::{run_loop, simulate_peak, Rig, Scenario};
-use swingdrive::protection::envelope::{sampled_k_with, K_ALLOWANCE, K_AZIMUTH, K_POLAR};
+use swingdrive::protection::envelope::{
+    sampled_k_with, CELLS, K_ALLOWANCE, K_AZIMUTH, K_POLAR, K_STRIDE,
+};
 use swingdrive::protection::estimator::{EstimatorFault, SwingEstimator};
 use swingdrive::sim::{replay, ReplayOptions, SeatDynamics, SpeedProfile, StartCondition};
 use swingdrive::*;
@@ -218,6 +220,51 @@ fn sampled_bound_k_covers_a_ten_times_finer_sample() {
                     fine <= K_ALLOWANCE * coarse,
                     "r0 {r0} L {l} w {w} chain {chain}: fine {fine} coarse {coarse}"
                 );
+            }
+        }
+    }
+}
+
+#[test]
+fn sampled_bound_k_covers_every_cell_of_the_grid() {
+    // Step 3 on the envelope's own grid (uniform in ω², so the K samples lie far apart
+    // at low speed): in every cell, K from a ten times finer sample of the cone at the
+    // cell's ends and middle stays within K_ALLOWANCE times the larger of the two coarse
+    // samples the cell takes (hand calculation, common practice). Three geometries,
+    // chains and rods.
+    for (r0, l) in [(4.0_f32, 6.5_f32), (0.0, 5.0), (2.0, 8.0)] {
+        for suspension in [Suspension::Chain, Suspension::Rod] {
+            let chain = suspension == Suspension::Chain;
+            let g = RideGeometry::new(r0, l, suspension, Gravity::STANDARD).unwrap();
+            let env = SwingEnvelope::new(&g, Angle::from_deg(50.0)).unwrap();
+            let (a, b) = (r0 / l, 9.80665 / l);
+            let phi_c = 50.0_f32.to_radians();
+            let k_at = |w: f32, polar: usize, azimuth: usize| {
+                let th = g
+                    .angle_for_speed(AngularSpeed::from_rad_per_s(w))
+                    .unwrap()
+                    .rad()
+                    .min(phi_c);
+                let rho_s2 = (a + th.sin()).powi(2);
+                let v_eq = -b * th.cos() - 0.5 * w * w * rho_s2;
+                sampled_k_with(a, b, w, phi_c, v_eq, rho_s2, chain, polar, azimuth)
+            };
+            for i in 0..CELLS {
+                let below = i - i % K_STRIDE;
+                let above = (below + K_STRIDE).min(CELLS);
+                let coarse = k_at(env.grid_speed(below), K_POLAR, K_AZIMUTH).max(k_at(
+                    env.grid_speed(above),
+                    K_POLAR,
+                    K_AZIMUTH,
+                ));
+                let (w0, w1) = (env.grid_speed(i), env.grid_speed(i + 1));
+                for w in [w0, 0.5 * (w0 + w1), w1] {
+                    let fine = k_at(w, 10 * K_POLAR, 10 * K_AZIMUTH);
+                    assert!(
+                        fine <= K_ALLOWANCE * coarse,
+                        "r0 {r0} L {l} {suspension:?} cell {i} w {w}: fine {fine} coarse {coarse}"
+                    );
+                }
             }
         }
     }
@@ -499,4 +546,150 @@ fn governor_faults_without_a_speed_and_admits_zero_while_stopping() {
         ..input
     });
     assert_eq!(d.status, GovernorStatus::Fault);
+}
+
+#[test]
+fn band_envelope_folds_the_three_lengths_conservatively() {
+    // Step 5: the certificate reads one folded envelope for the length band. At any
+    // speed its room must not exceed any length's room, its growth integral must not
+    // fall below any length's, and its swing bound must not fall below any length's
+    // (each length's own envelope on the common grid is the reference; hand
+    // calculation, common practice). Chains and rods, random states and speeds.
+    let mut seed = 0x9e37_79b9_u64;
+    let mut next = move || {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        (seed >> 11) as f32 / (1u64 << 53) as f32
+    };
+    for suspension in [Suspension::Chain, Suspension::Rod] {
+        let g = issue_ride(suspension);
+        let params = GovernorParams::demo(&g, 50.0, 0.05);
+        let gov = SwingGovernor::new(&g, &params).unwrap();
+        let band = gov.band();
+        let envs = &SwingGovernor::length_envelopes(&g, &params).unwrap();
+        for env in envs {
+            assert_eq!(env.top_rad_s(), band.top_rad_s());
+        }
+        for _ in 0..3000 {
+            let w = 1.02 * band.top_rad_s() * next();
+            let w2 = 1.02 * band.top_rad_s() * next();
+            let state = SeatState {
+                radial_rad: 0.9 * next(),
+                radial_rate: 0.4 * (next() - 0.5),
+                tangential_rad: if suspension == Suspension::Chain {
+                    0.5 * (next() - 0.5)
+                } else {
+                    0.0
+                },
+                tangential_rate: if suspension == Suspension::Chain {
+                    0.4 * (next() - 0.5)
+                } else {
+                    0.0
+                },
+            };
+            let jacobi = [
+                envs[0].model().jacobi(&state, w),
+                envs[1].model().jacobi(&state, w),
+                envs[2].model().jacobi(&state, w),
+            ];
+            let swing = band.swing(&jacobi, w);
+            for env in envs {
+                assert!(
+                    band.room(w) <= env.room(w),
+                    "room at {w}: {} > {}",
+                    band.room(w),
+                    env.room(w)
+                );
+                let (lo, hi) = (w.min(w2), w.max(w2));
+                assert!(
+                    band.growth_to(hi) - band.growth_to(lo)
+                        >= env.growth_to(hi) - env.growth_to(lo) - 1e-6,
+                    "growth over [{lo}, {hi}]"
+                );
+                assert!(swing >= env.swing_energy(&state, w).sqrt() - 1e-6);
+            }
+        }
+    }
+}
+
+#[test]
+fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
+    // The governor reads a down move's slack from the per-cell terms of the band's
+    // envelope (one comparison per whole cell); it must give the cell-by-cell check,
+    // up to f32 rounding (1e-5), on pieces of every length, partly above the top too.
+    let mut seed = 0x9e37_79b9_u64;
+    let mut next = move || {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        (seed >> 11) as f32 / (1u64 << 53) as f32
+    };
+    for suspension in [Suspension::Chain, Suspension::Rod] {
+        let g = issue_ride(suspension);
+        for u in [0.0_f32, 0.005, 0.02] {
+            let params = GovernorParams {
+                speed_uncertainty_rad_s: u,
+                ..GovernorParams::demo(&g, 50.0, 0.05)
+            };
+            let gov = SwingGovernor::new(&g, &params).unwrap();
+            let band = gov.band();
+            for _ in 0..2000 {
+                let x = 1.05 * band.top_rad_s() * next();
+                let y = 1.05 * band.top_rad_s() * next();
+                let (lo, hi) = (x.min(y), x.max(y));
+                let start = 0.3 * next();
+                let slow = band.down_slack_by_cells(start, lo, hi);
+                let fast = band.down_slack(start, lo, hi);
+                assert!(
+                    (slow - fast).abs() <= 1e-5 * (1.0 + slow.abs()),
+                    "{suspension:?} u {u} [{lo}, {hi}] start {start}: {slow} vs {fast}"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+fn governor_lowers_from_its_highest_admitted_speed() {
+    // The reserve kept on every ascent (docs/dynamic_protection.md, "Reserve for
+    // lowering") must let the governor lower from the highest speed it admitted: a
+    // request above what it admits for 200 s, then 20°; the command must reach the new
+    // request within 60 s (demo ride of the cost table; hand calculation, common
+    // practice: at the governor's 0.02 rad/s² the move itself takes about 15 s).
+    let g = RideGeometry::new(3.4, 5.8, Suspension::Chain, Gravity::STANDARD).unwrap();
+    let rig = rig(g, 45.0);
+    let v20 = f64::from(
+        g.speed_for_angle(Angle::from_deg(20.0))
+            .unwrap()
+            .rad_per_s(),
+    );
+    let v40 = f64::from(
+        g.speed_for_angle(Angle::from_deg(40.0))
+            .unwrap()
+            .rad_per_s(),
+    );
+    let scenario = Scenario {
+        requests: vec![(0.0, v40), (200.0, v20)],
+        duration_s: 260.0,
+        stop_at_s: None,
+    };
+    let run = run_loop(&rig, &scenario, true, 0.0).unwrap();
+    assert_eq!(run.fault_ticks, 0);
+    let high = run
+        .profile
+        .iter()
+        .filter(|p| p.0 <= 200.0)
+        .map(|p| p.1)
+        .fold(0.0, f64::max);
+    assert!(high > 0.9 * v40, "never got near the request: {high}");
+    let done = run
+        .profile
+        .iter()
+        .find(|p| p.0 >= 200.0 && (p.1 - v20).abs() <= 1e-3 * v20)
+        .map(|p| p.0 - 200.0);
+    assert!(
+        done.is_some_and(|d| d < 60.0),
+        "lowering from {high} rad/s: {done:?}"
+    );
 }

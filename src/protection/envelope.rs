@@ -25,11 +25,14 @@
 
 use crate::error::ParamError;
 use crate::geometry::{RideGeometry, Suspension};
+use crate::math::{larger, smaller};
 use crate::seat_model::{SeatModel, SeatState};
 use crate::units::Angle;
 
-/// Cells of the speed grid: cell i spans the speeds whose steady angles lie
-/// between i/N and (i+1)/N of the certified angle.
+/// Cells of the speed grid: cell i spans the speeds whose squares lie
+/// between i/N and (i+1)/N of the top speed's square (uniform in ω², so a
+/// speed's cell is found by one multiplication, and the cells are narrowest
+/// near the top, where the steady angle is most sensitive to the speed).
 pub const CELLS: usize = 32;
 
 /// Sample intervals over the cone for the bound K (polar × azimuthal).
@@ -38,7 +41,7 @@ pub const K_POLAR: usize = 16;
 pub const K_AZIMUTH: usize = 8;
 /// K is sampled at every `K_STRIDE`-th grid speed; a cell takes the larger of
 /// the two samples around it.
-pub const K_STRIDE: usize = 4;
+pub const K_STRIDE: usize = 2;
 
 /// Factor on the sampled K: the sup is taken over a finite sample, so the
 /// value between samples is covered by this allowance (checked against a
@@ -52,10 +55,11 @@ pub struct SwingEnvelope {
     model: SeatModel,
     /// Speed at which the steady angle is the certified angle, rad/s.
     top_rad_s: f32,
-    /// Grid speeds g_0 = 0 < g_1 < … < g_N = top: the speeds whose steady
-    /// angles are i/N of the certified angle (closed form, and finer where
-    /// the angle is most sensitive to the speed).
+    /// Grid speeds g_i = top·√(i/N), g_0 = 0 < g_1 < … < g_N = top.
     speeds: [f32; CELLS + 1],
+    /// N / top²: the cell of ω is ⌊ω² · this⌋ (corrected by one comparison
+    /// with the grid for rounding).
+    cell_scale: f32,
     /// V_eq at the grid speeds g_0 … g_N.
     v_eq: [f32; CELLS + 1],
     /// dV_eq/dω = −ω ρs² at the grid speeds (envelope theorem).
@@ -80,13 +84,37 @@ impl SwingEnvelope {
     /// The envelope of `geometry` (its length is the model's length) for the
     /// certified angle `certified`.
     ///
-    /// Work is bounded: (N+1) steady solves and (N+1)·24·12 potential
-    /// evaluations without trigonometry.
+    /// Work is bounded: N steady solves (angle for speed) and
+    /// (N/K_STRIDE + 1)·(K_POLAR + 1)·(K_AZIMUTH + 1) potential evaluations.
     ///
     /// # Errors
     /// [`ParamError`] naming `certified_angle_deg` when the angle is not in
     /// (0°, 85°].
     pub fn new(geometry: &RideGeometry, certified: Angle) -> Result<Self, ParamError> {
+        Self::build(geometry, certified, None)
+    }
+
+    /// The envelope of `geometry` on a grid that ends at `grid_top` (rad/s),
+    /// at most the speed whose steady angle is the certified angle (so that
+    /// several lengths share one grid: the lowest top of them). Speeds at or
+    /// above `grid_top` get no room.
+    ///
+    /// # Errors
+    /// As [`new`](Self::new); `certified_angle_deg` also when `grid_top` is
+    /// not in (0, top].
+    pub fn with_grid_top(
+        geometry: &RideGeometry,
+        certified: Angle,
+        grid_top: f32,
+    ) -> Result<Self, ParamError> {
+        Self::build(geometry, certified, Some(grid_top))
+    }
+
+    fn build(
+        geometry: &RideGeometry,
+        certified: Angle,
+        grid_top: Option<f32>,
+    ) -> Result<Self, ParamError> {
         let phi_c = certified.rad();
         if !phi_c.is_finite() {
             return Err(ParamError::NonFinite("certified_angle_deg"));
@@ -107,17 +135,35 @@ impl SwingEnvelope {
         let mut v_eq_slope = [0.0_f32; CELLS + 1];
         let mut k_at = [0.0_f32; CELLS + 1];
         let mut t_cap = [0.0_f32; CELLS + 1];
+        let top_rad_s = geometry
+            .speed_for_angle(certified)
+            .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
+            .rad_per_s();
+        if !(top_rad_s > 0.0 && top_rad_s.is_finite()) {
+            return Err(ParamError::OutOfRange("certified_angle_deg"));
+        }
+        let own_top = top_rad_s;
+        let top_rad_s = match grid_top {
+            Some(t) if t > 0.0 && t <= own_top => t,
+            Some(_) => return Err(ParamError::OutOfRange("certified_angle_deg")),
+            None => own_top,
+        };
         let mut i = 0;
         while i <= CELLS {
             #[allow(clippy::cast_precision_loss)]
-            let theta = phi_c * i as f32 / CELLS as f32;
-            let w = if i == 0 {
-                0.0
+            let w = if i == CELLS {
+                top_rad_s
+            } else {
+                top_rad_s * crate::math::sqrt(i as f32 / CELLS as f32)
+            };
+            // The steady angle at the grid speed (a solve; exact at the top).
+            let theta = if i == CELLS && top_rad_s == own_top {
+                phi_c
             } else {
                 geometry
-                    .speed_for_angle(Angle::from_rad(theta))
+                    .angle_for_speed(crate::units::AngularSpeed::from_rad_per_s(w))
                     .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))?
-                    .rad_per_s()
+                    .rad()
             };
             let (st, ct) = crate::math::sin_cos(theta);
             let rho_s2 = (a + st) * (a + st);
@@ -140,7 +186,6 @@ impl SwingEnvelope {
             }
             i += 1;
         }
-        let top_rad_s = at(&speeds, CELLS, 0.0);
         let mut room = [0.0_f32; CELLS];
         let mut growth = [0.0_f32; CELLS];
         let mut cumulative = [0.0_f32; CELLS + 1];
@@ -175,6 +220,7 @@ impl SwingEnvelope {
             model,
             top_rad_s,
             speeds,
+            cell_scale: CELLS as f32 / (top_rad_s * top_rad_s),
             v_eq,
             v_eq_slope,
             cone: (b * c_c, 0.5 * c * c),
@@ -184,34 +230,66 @@ impl SwingEnvelope {
         })
     }
 
+    /// The grid speeds g_0 … g_N, rad/s.
+    pub(crate) const fn grid(&self) -> &[f32; CELLS + 1] {
+        &self.speeds
+    }
+
+    /// V_eq at the grid speeds, 1/s².
+    pub(crate) const fn v_eq_grid(&self) -> &[f32; CELLS + 1] {
+        &self.v_eq
+    }
+
+    /// dV_eq/dω at the grid speeds, 1/s.
+    pub(crate) const fn v_eq_slope_grid(&self) -> &[f32; CELLS + 1] {
+        &self.v_eq_slope
+    }
+
+    /// b cos φc and ½ c²: E_adm(ω) = −b cos φc − ½ c² ω².
+    pub(crate) const fn cone(&self) -> (f32, f32) {
+        self.cone
+    }
+
+    /// Per cell, √T_cap at its upper end (the least room over the cell), 1/s.
+    pub(crate) const fn room_cells(&self) -> &[f32; CELLS] {
+        &self.room
+    }
+
+    /// Per cell, the bound on ½ G, 1/s per rad/s.
+    pub(crate) const fn growth_cells(&self) -> &[f32; CELLS] {
+        &self.growth
+    }
+
     /// The seat model of this length (undamped).
     #[must_use]
     pub const fn model(&self) -> &SeatModel {
         &self.model
     }
 
-    /// Speed whose steady angle is the certified angle, rad/s.
+    /// The top of the grid, rad/s: the speed whose steady angle is the
+    /// certified angle, or the lower `grid_top` of
+    /// [`with_grid_top`](Self::with_grid_top).
     #[must_use]
     pub const fn top_rad_s(&self) -> f32 {
         self.top_rad_s
     }
 
     /// Cell holding speed magnitude `w` (`None` at or above the top speed,
-    /// or not finite): a bisection over the grid, at most 6 steps.
+    /// or not finite): ⌊ω² N / top²⌋, then one comparison with the grid each
+    /// way, so that g_i ≤ w < g_{i+1} holds whatever the rounding.
     fn cell(&self, w: f32) -> Option<usize> {
         if !(w >= 0.0 && w < self.top_rad_s) {
             return None;
         }
-        let (mut lo, mut hi) = (0, CELLS);
-        while hi - lo > 1 {
-            let mid = (lo + hi) / 2;
-            if w >= at(&self.speeds, mid, 0.0) {
-                lo = mid;
-            } else {
-                hi = mid;
-            }
+        // `as` saturates; w < top keeps the product below N up to rounding.
+        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+        let mut i = ((w * w * self.cell_scale) as usize).min(CELLS - 1);
+        if w < at(&self.speeds, i, 0.0) {
+            i = i.saturating_sub(1);
+        } else if i + 1 < CELLS && w >= at(&self.speeds, i + 1, 0.0) {
+            i += 1;
         }
-        Some(lo)
+        Some(i)
     }
 
     /// A lower bound of V_eq at speed magnitude `w`: the chord between grid
@@ -234,7 +312,21 @@ impl SwingEnvelope {
     #[must_use]
     pub fn swing_energy(&self, state: &SeatState, w: f32) -> f32 {
         let w = libm::fabsf(w);
-        (self.model.jacobi(state, w) - self.v_eq_chord(w)).max(0.0)
+        self.swing_energy_from_jacobi(self.model.jacobi(state, w), w)
+    }
+
+    /// As [`swing_energy`](Self::swing_energy), from the Jacobi integral
+    /// `jacobi` of the state at speed `w` (the estimator's vector form
+    /// computes it without trigonometry).
+    #[must_use]
+    pub fn swing_energy_from_jacobi(&self, jacobi: f32, w: f32) -> f32 {
+        let s = jacobi - self.v_eq_chord(libm::fabsf(w));
+        // NaN stays NaN (the caller's certificate then fails).
+        if s > 0.0 || s.is_nan() {
+            s
+        } else {
+            0.0
+        }
     }
 
     /// Lower bound of √T_cap at speed magnitude `w` (0 at or above the top):
@@ -250,9 +342,12 @@ impl SwingEnvelope {
         let t0 = at(&self.v_eq, i, 0.0) + at(&self.v_eq_slope, i, 0.0) * (w - g0);
         let t1 = at(&self.v_eq, i + 1, 0.0) + at(&self.v_eq_slope, i + 1, 0.0) * (w - g1);
         let e_adm = -self.cone.0 - self.cone.1 * w * w;
-        let t_cap = e_adm - t0.min(t1);
+        let t_cap = e_adm - smaller(t0, t1);
         // Never below the cell's guaranteed value.
-        crate::math::sqrt(t_cap.max(0.0)).max(at(&self.room, i, 0.0))
+        larger(
+            crate::math::sqrt(larger(t_cap, 0.0)),
+            at(&self.room, i, 0.0),
+        )
     }
 
     /// ∫₀^w ½ G dω with the cell bounds: the most √S can grow while the speed
@@ -266,7 +361,7 @@ impl SwingEnvelope {
             }
             None => {
                 at(&self.cumulative, CELLS, 0.0)
-                    + at(&self.growth, CELLS - 1, 0.0) * (w - self.top_rad_s).max(0.0)
+                    + at(&self.growth, CELLS - 1, 0.0) * larger(w - self.top_rad_s, 0.0)
             }
         }
     }
@@ -289,10 +384,10 @@ impl SwingEnvelope {
         }
         let mut i = first;
         while i <= last && i < CELLS {
-            let low = at(&self.speeds, i, 0.0).max(lo);
-            let high = at(&self.speeds, i + 1, 0.0).min(hi);
+            let low = larger(at(&self.speeds, i, 0.0), lo);
+            let high = smaller(at(&self.speeds, i + 1, 0.0), hi);
             let grown = start + top_g - self.growth_to(low);
-            slack = slack.min(self.room(high + u) - grown);
+            slack = smaller(slack, self.room(high + u) - grown);
             i += 1;
         }
         slack
@@ -317,8 +412,9 @@ impl SwingEnvelope {
     }
 }
 
-/// Most azimuth intervals [`sampled_k_with`] takes.
-pub const MAX_AZIMUTH: usize = 256;
+/// Most azimuth intervals [`sampled_k_with`] takes (its table of cos β lives on
+/// the stack of the envelope's construction: kept small for a 16 KiB Cortex-M0).
+pub const MAX_AZIMUTH: usize = 128;
 
 /// Largest |ρ² − ρs²| / √(V − V_eq) over a sample of the cone φ ≤ φc
 /// (outward half; the potential is symmetric in the azimuth), at speed `w`,

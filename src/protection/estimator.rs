@@ -3,6 +3,10 @@
 //! (shortest, nominal, longest), open loop from a confirmed rest state, with
 //! an optional correction from a seat-angle sensor.
 //!
+//! Each length is integrated in the vector form of the seat model
+//! ([`LinkModel`]: the link's unit vector and its rate, RK4 without
+//! trigonometry); [`SwingEstimator::states`] gives the angles.
+//!
 //! Between two estimator steps the shaft speed is taken to move linearly from
 //! the previous measurement to the current one (constant acceleration over
 //! the step): the acceleration used is the speed difference over the step, so
@@ -10,6 +14,8 @@
 //! differentiation noise accumulates.
 
 use crate::seat_model::{SeatModel, SeatState, MAX_STEP_S};
+
+use super::link::{LinkModel, LinkState};
 
 /// Number of lengths integrated: shortest, nominal and longest of the band.
 pub const LENGTH_MODELS: usize = 3;
@@ -55,8 +61,8 @@ pub enum EstimatorFault {
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SwingEstimator {
-    models: [SeatModel; LENGTH_MODELS],
-    states: [SeatState; LENGTH_MODELS],
+    models: [LinkModel; LENGTH_MODELS],
+    states: [LinkState; LENGTH_MODELS],
     period_s: f32,
     rest_hold_s: f32,
     /// Measured speed at the last estimator step, rad/s.
@@ -77,8 +83,12 @@ impl SwingEstimator {
     #[must_use]
     pub const fn new(models: [SeatModel; LENGTH_MODELS], period_s: f32, rest_hold_s: f32) -> Self {
         Self {
-            models,
-            states: [SeatState::REST; LENGTH_MODELS],
+            models: [
+                LinkModel::of(&models[0]),
+                LinkModel::of(&models[1]),
+                LinkModel::of(&models[2]),
+            ],
+            states: [LinkState::REST; LENGTH_MODELS],
             period_s,
             rest_hold_s,
             last_speed: 0.0,
@@ -96,7 +106,7 @@ impl SwingEstimator {
         if libm::fabsf(measured_rad_s) > REST_SPEED_RAD_S || measured_rad_s.is_nan() {
             return false;
         }
-        self.states = [SeatState::REST; LENGTH_MODELS];
+        self.states = [LinkState::REST; LENGTH_MODELS];
         self.last_speed = measured_rad_s;
         self.pending_s = 0.0;
         self.confirmed = true;
@@ -116,7 +126,7 @@ impl SwingEstimator {
             return Err(self.latch(EstimatorFault::NotFinite));
         }
         if libm::fabsf(measured_rad_s) <= REST_SPEED_RAD_S {
-            self.still_s = (self.still_s + dt_s).min(1.0e6);
+            self.still_s = crate::math::smaller(self.still_s + dt_s, 1.0e6);
             if self.still_s >= self.rest_hold_s {
                 // The swing has died out (commissioning assumption on
                 // rest_hold_s): the model may restart from rest.
@@ -141,27 +151,40 @@ impl SwingEstimator {
         }
         let span = self.pending_s;
         let alpha = (measured_rad_s - self.last_speed) / span;
-        #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
-        let n = (libm::ceilf(span / SUB_STEP_S) as u32).clamp(1, MAX_SUB_STEPS);
-        #[allow(clippy::cast_precision_loss)]
-        let h = span / n as f32;
+        // One sub-step when the span fits (the 100 Hz case), else ⌈span / sub-step⌉.
+        let (n, h) = if span <= SUB_STEP_S {
+            (1, span)
+        } else {
+            #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+            let n = (libm::ceilf(span / SUB_STEP_S) as u32).clamp(1, MAX_SUB_STEPS);
+            #[allow(clippy::cast_precision_loss)]
+            let h = span / n as f32;
+            (n, h)
+        };
         if h > MAX_STEP_S {
             return Err(self.latch(EstimatorFault::NotFinite));
         }
-        let mut next = self.states;
-        for (state, model) in next.iter_mut().zip(self.models.iter()) {
+        if !(h > 0.0 && alpha.is_finite()) {
+            return Err(self.latch(EstimatorFault::NotFinite));
+        }
+        // Stepped in place: on a fault the states are no longer trusted (the
+        // latch clears the confirmation; only a confirmed rest resets them).
+        let mut finite = true;
+        for (state, model) in self.states.iter_mut().zip(self.models.iter()) {
             let mut w = self.last_speed;
             let mut k = 0;
-            while k < n {
+            while k < n && finite {
                 match model.step(state, w, alpha, h) {
                     Some(s) => *state = s,
-                    None => return Err(self.latch(EstimatorFault::NotFinite)),
+                    None => finite = false,
                 }
                 w += alpha * h;
                 k += 1;
             }
         }
-        self.states = next;
+        if !finite {
+            return Err(self.latch(EstimatorFault::NotFinite));
+        }
         self.last_speed = measured_rad_s;
         self.pending_s = 0.0;
         Ok(true)
@@ -186,19 +209,25 @@ impl SwingEstimator {
         if let Some(f) = self.fault {
             return Err(f);
         }
-        let nominal = self.states.get(NOMINAL).copied().unwrap_or_default();
+        let nominal = self
+            .states
+            .get(NOMINAL)
+            .map(LinkState::to_angles)
+            .unwrap_or_default();
         let disagreement = libm::fabsf(radial_rad - nominal.radial_rad)
             .max(libm::fabsf(tangential_rad - nominal.tangential_rad));
         if disagreement > tolerance_rad || disagreement.is_nan() {
             return Err(self.latch(EstimatorFault::SensorDisagreement));
         }
-        for state in &mut self.states {
+        for link in &mut self.states {
+            let mut state = link.to_angles();
             let e_r = radial_rad - state.radial_rad;
             let e_t = tangential_rad - state.tangential_rad;
             state.radial_rad += OBSERVER_ANGLE_GAIN * e_r;
             state.radial_rate += OBSERVER_RATE_GAIN_PER_S * e_r;
             state.tangential_rad += OBSERVER_ANGLE_GAIN * e_t;
             state.tangential_rate += OBSERVER_RATE_GAIN_PER_S * e_t;
+            *link = LinkState::from_angles(&state);
         }
         Ok(disagreement)
     }
@@ -209,10 +238,28 @@ impl SwingEstimator {
         fault
     }
 
-    /// The swing states (shortest, nominal, longest length).
+    /// The swing states as angles (shortest, nominal, longest length).
+    /// Converted from the vector form on each call (inverse trigonometry):
+    /// for displays and tests, not for the tick.
     #[must_use]
-    pub const fn states(&self) -> &[SeatState; LENGTH_MODELS] {
+    pub fn states(&self) -> [SeatState; LENGTH_MODELS] {
+        [
+            self.states[0].to_angles(),
+            self.states[1].to_angles(),
+            self.states[2].to_angles(),
+        ]
+    }
+
+    /// The swing states in vector form (shortest, nominal, longest length).
+    #[must_use]
+    pub const fn link_states(&self) -> &[LinkState; LENGTH_MODELS] {
         &self.states
+    }
+
+    /// The models in vector form (shortest, nominal, longest length).
+    #[must_use]
+    pub const fn link_models(&self) -> &[LinkModel; LENGTH_MODELS] {
+        &self.models
     }
 
     /// Measured speed at the last estimator step, rad/s.
@@ -238,7 +285,7 @@ impl SwingEstimator {
     pub fn largest_angle_rad(&self) -> f32 {
         self.states
             .iter()
-            .map(SeatState::angle_from_vertical)
+            .map(LinkState::angle_from_vertical)
             .fold(0.0, f32::max)
     }
 }

@@ -14,10 +14,13 @@
 use crate::error::{check_range, ParamError};
 use crate::geometry::RideGeometry;
 use crate::request_governor::{GovernorDecision, GovernorInput, GovernorStatus, RequestGovernor};
+use crate::seat_model::SeatModel;
 use crate::units::Angle;
 
+use super::band::BandEnvelope;
 use super::envelope::SwingEnvelope;
 use super::estimator::{EstimatorFault, SwingEstimator, LENGTH_MODELS, MAX_ADVANCE_S};
+use crate::math::{larger, least, smaller};
 
 /// Parameters of the swing governor.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -91,7 +94,11 @@ pub struct Certificate {
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct SwingGovernor {
-    envelopes: [SwingEnvelope; LENGTH_MODELS],
+    /// The three lengths' envelopes folded (least room, largest growth per cell):
+    /// what the per-tick certificate reads.
+    band: BandEnvelope,
+    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
+    steepest: f32,
     estimator: SwingEstimator,
     params: GovernorParams,
     sensor_tolerance_rad: f32,
@@ -111,10 +118,10 @@ impl SwingGovernor {
     // several copies of it in the caller's frame (too much for a 16 KiB M0).
     #[inline(never)]
     pub fn new(geometry: &RideGeometry, params: &GovernorParams) -> Result<Self, ParamError> {
-        let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
+        check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
         let l = geometry.length_m();
         let l_min = check_range("length_min_m", params.length_min_m, 0.0, l)?;
-        let l_max = check_range("length_max_m", params.length_max_m, l, 100.0)?;
+        check_range("length_max_m", params.length_max_m, l, 100.0)?;
         if l_min <= 0.0 {
             return Err(ParamError::NotPositive("length_min_m"));
         }
@@ -144,20 +151,13 @@ impl SwingGovernor {
         if rate <= 0.0 {
             return Err(ParamError::NotPositive("target_rate_rad_s2"));
         }
-        let certified = Angle::from_deg(deg);
-        let envelopes = [
-            SwingEnvelope::new(&geometry.with_length(l_min)?, certified)?,
-            SwingEnvelope::new(geometry, certified)?,
-            SwingEnvelope::new(&geometry.with_length(l_max)?, certified)?,
-        ];
-        let models = [
-            *envelopes[0].model(),
-            *envelopes[1].model(),
-            *envelopes[2].model(),
-        ];
+        let mut band = BandEnvelope::empty();
+        let models = fill_band(&mut band, geometry, params)?;
+        let steepest = band.steepest_growth();
         Ok(Self {
             estimator: SwingEstimator::new(models, params.estimator_period_s, params.rest_hold_s),
-            envelopes,
+            band,
+            steepest,
             params: *params,
             sensor_tolerance_rad: tol.to_radians(),
             admitted: 0.0,
@@ -194,10 +194,30 @@ impl SwingGovernor {
         &self.estimator
     }
 
-    /// The envelopes (shortest, nominal, longest length).
+    /// The envelopes of the shortest, nominal and longest length of
+    /// `params`' band for `geometry`, on one grid up to the lowest of their
+    /// top speeds: what [`new`](Self::new) folds into the band's envelope
+    /// (not kept by the governor).
+    ///
+    /// # Errors
+    /// [`ParamError`] naming the refused parameter.
+    #[inline(never)]
+    pub fn length_envelopes(
+        geometry: &RideGeometry,
+        params: &GovernorParams,
+    ) -> Result<[SwingEnvelope; LENGTH_MODELS], ParamError> {
+        let (short, long, certified, grid_top) = band_grid(geometry, params)?;
+        Ok([
+            SwingEnvelope::with_grid_top(&short, certified, grid_top)?,
+            SwingEnvelope::with_grid_top(geometry, certified, grid_top)?,
+            SwingEnvelope::with_grid_top(&long, certified, grid_top)?,
+        ])
+    }
+
+    /// The band's folded envelope (what the certificate reads).
     #[must_use]
-    pub const fn envelopes(&self) -> &[SwingEnvelope; LENGTH_MODELS] {
-        &self.envelopes
+    pub const fn band(&self) -> &BandEnvelope {
+        &self.band
     }
 
     /// What the last decision found.
@@ -210,10 +230,7 @@ impl SwingGovernor {
     /// (the smallest of the top speeds).
     #[must_use]
     pub fn top_rad_s(&self) -> f32 {
-        self.envelopes
-            .iter()
-            .map(SwingEnvelope::top_rad_s)
-            .fold(f32::INFINITY, f32::min)
+        self.band.top_rad_s()
     }
 
     /// Slack of a controlled stop to zero from the commanded state (`v`,
@@ -226,36 +243,70 @@ impl SwingGovernor {
         self.slack(self.estimator.speed_rad_s(), v, a, 0.0)
     }
 
-    /// Largest ½ G over the lengths and cells, 1/s per rad/s.
-    fn steepest_growth(&self) -> f32 {
-        self.envelopes
-            .iter()
-            .map(SwingEnvelope::steepest_growth)
-            .fold(0.0, f32::max)
-    }
-
     /// Slack of the path from the commanded state (`v`, `a`) through the
     /// braking point to `target`, smallest over the lengths, 1/s.
     #[must_use]
     pub fn slack(&self, measured: f32, v: f32, a: f32, target: f32) -> f32 {
         let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
+        self.finish(&self.prefix(measured, v, v_ext), v_ext, target)
+    }
+
+    /// What every candidate target shares: the growth of √S and the smallest
+    /// slack from the present state through the braking of the acceleration
+    /// to `v_ext`, on the band's envelope, each length's room paired with its
+    /// own present swing bound.
+    fn prefix(&self, measured: f32, v: f32, v_ext: f32) -> Prefix {
+        let band = &self.band;
         let u = self.params.speed_uncertainty_rad_s;
-        let mut slack = f32::INFINITY;
-        for (env, state) in self.envelopes.iter().zip(self.estimator.states().iter()) {
-            let s0 = crate::math::sqrt(env.swing_energy(state, measured));
-            // The measured and the commanded speed may differ, and the true
-            // speed from both: count the gap and the uncertainty once, as
-            // travel already made. The room is read u higher throughout.
-            let gap =
-                libm::fabsf(env.growth_to(libm::fabsf(measured)) - env.growth_to(libm::fabsf(v)));
-            let spread = env.growth_to(libm::fabsf(v) + u) - env.growth_to(libm::fabsf(v));
-            let mut r = s0 + gap + spread;
-            let mut s = env.room(libm::fabsf(v) + u) - r;
-            for (from, to) in [(v, v_ext), (v_ext, target)] {
-                s = s.min(piece(env, &mut r, from, to, u));
-            }
-            slack = slack.min(s);
+        let m = libm::fabsf(measured);
+        let va = libm::fabsf(v);
+        let models = self.estimator.link_models();
+        let states = self.estimator.link_states();
+        let jacobi = [
+            models[0].jacobi(&states[0], m),
+            models[1].jacobi(&states[1], m),
+            models[2].jacobi(&states[2], m),
+        ];
+        let swings = band.swings(&jacobi, m);
+        // The measured and the commanded speed may differ, and the true speed
+        // from both: count the gap and the uncertainty once, as travel already
+        // made. The room is read u higher throughout.
+        let g_v = band.growth_to(va);
+        let gap = libm::fabsf(band.growth_to(m) - g_v);
+        let spread = band.growth_to(va + u) - g_v;
+        let mut grown = gap + spread;
+        let slack = band.room_less(va + u, &swings) - grown;
+        let slack = least(slack, piece(band, &swings, &mut grown, v, v_ext, u));
+        let [a, b, c] = swings;
+        Prefix {
+            grown,
+            slack,
+            growth_ext: band.growth_to(libm::fabsf(v_ext)),
+            swings,
+            swing: if a.is_nan() || b.is_nan() || c.is_nan() {
+                f32::NAN
+            } else {
+                larger(a, larger(b, c))
+            },
         }
+    }
+
+    /// Slack of the path of `prefix` continued from `v_ext` to `target`, 1/s
+    /// (−∞ when not a number).
+    fn finish(&self, prefix: &Prefix, v_ext: f32, target: f32) -> f32 {
+        let band = &self.band;
+        let u = self.params.speed_uncertainty_rad_s;
+        let same_direction = !((v_ext > 0.0 && target < 0.0) || (v_ext < 0.0 && target > 0.0));
+        let (m1, m2) = (libm::fabsf(v_ext), libm::fabsf(target));
+        let last = if same_direction && m2 >= m1 {
+            // Up: √S grows, the room shrinks; the end is the binding point.
+            band.room_less(m2 + u, &prefix.swings)
+                - (prefix.grown + band.growth_to(m2) - prefix.growth_ext)
+        } else {
+            let mut r = prefix.grown;
+            piece(band, &prefix.swings, &mut r, v_ext, target, u)
+        };
+        let slack = least(prefix.slack, last);
         if slack.is_nan() {
             f32::NEG_INFINITY
         } else {
@@ -269,12 +320,10 @@ impl SwingGovernor {
         let request = input.clamped_request_rad_s;
         let margin = self.params.margin_per_s;
         let v_ext = v + a * libm::fabsf(a) / (2.0 * self.params.jerk_rad_s3);
-        let swing = self
-            .envelopes
-            .iter()
-            .zip(self.estimator.states().iter())
-            .map(|(e, s)| crate::math::sqrt(e.swing_energy(s, measured)))
-            .fold(0.0, f32::max);
+        // The present state and the braking of the acceleration, once; each
+        // candidate target below adds only its own last piece.
+        let prefix = self.prefix(measured, v, v_ext);
+        let swing = prefix.swing;
         let record = |admitted: f32, slack: f32, certified: bool, last: &mut Certificate| {
             *last = Certificate {
                 slack_per_s: slack,
@@ -285,7 +334,7 @@ impl SwingGovernor {
         };
         if !request.is_finite() {
             let held = self.admitted;
-            let s = self.slack(measured, v, a, held);
+            let s = self.finish(&prefix, v_ext, held);
             let admitted = record(held, s, s >= margin, &mut self.last);
             return GovernorDecision {
                 admitted_rad_s: admitted,
@@ -296,9 +345,9 @@ impl SwingGovernor {
         // the decision period per decision, toward the request.
         let held = self.admitted;
         let reach = self.params.target_rate_rad_s2 * self.params.estimator_period_s;
-        // max/min rather than clamp: no assertion on the bounds, so no panic path.
-        let trial = held + (request - held).max(-reach).min(reach);
-        let s_trial = self.slack(measured, v, a, trial);
+        // Comparisons rather than clamp: no assertion on the bounds, so no panic path.
+        let trial = held + smaller(larger(request - held, -reach), reach);
+        let s_trial = self.finish(&prefix, v_ext, trial);
         // A move away from standstill must leave enough slack for the first
         // step back down to be certified too (the bound charges a step down
         // at most ½G per rad/s, and the room grows back as the speed falls),
@@ -307,7 +356,7 @@ impl SwingGovernor {
         let reserve = if lowering {
             0.0
         } else {
-            2.0 * reach * self.steepest_growth()
+            2.0 * reach * self.steepest
         };
         if s_trial >= margin + reserve {
             self.admitted = record(trial, s_trial, true, &mut self.last);
@@ -318,14 +367,14 @@ impl SwingGovernor {
                 };
             }
         } else {
-            let s_held = self.slack(measured, v, a, held);
+            let s_held = self.finish(&prefix, v_ext, held);
             if s_held >= margin {
                 self.admitted = record(held, s_held, true, &mut self.last);
             } else {
                 // Nothing certified (after a disturbance the bound did not
                 // cover): the manoeuvre with the least examined growth is
                 // braking the acceleration and holding the speed reached.
-                let s_ext = self.slack(measured, v, a, v_ext);
+                let s_ext = self.finish(&prefix, v_ext, v_ext);
                 self.admitted = record(v_ext, s_ext, false, &mut self.last);
             }
         }
@@ -336,28 +385,112 @@ impl SwingGovernor {
     }
 }
 
-/// One piece of the path from signed speed `from` to `to`: adds its growth to
-/// `r` and returns the smallest slack along it.
-fn piece(env: &SwingEnvelope, r: &mut f32, from: f32, to: f32, u: f32) -> f32 {
-    // Split at zero when the direction of rotation changes.
-    if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
-        let first = magnitude_piece(env, r, libm::fabsf(from), 0.0, u);
-        let second = magnitude_piece(env, r, 0.0, libm::fabsf(to), u);
-        return first.min(second);
+/// The shortest and longest geometry of the band, the certified angle and
+/// the top of the common grid (the lowest of the three top speeds).
+fn band_grid(
+    geometry: &RideGeometry,
+    params: &GovernorParams,
+) -> Result<(RideGeometry, RideGeometry, Angle, f32), ParamError> {
+    let deg = check_range("certified_angle_deg", params.certified_angle_deg, 0.0, 85.0)?;
+    let l = geometry.length_m();
+    let l_min = check_range("length_min_m", params.length_min_m, 0.0, l)?;
+    let l_max = check_range("length_max_m", params.length_max_m, l, 100.0)?;
+    if l_min <= 0.0 {
+        return Err(ParamError::NotPositive("length_min_m"));
     }
-    magnitude_piece(env, r, libm::fabsf(from), libm::fabsf(to), u)
+    let certified = Angle::from_deg(deg);
+    let short = geometry.with_length(l_min)?;
+    let long = geometry.with_length(l_max)?;
+    let top = |g: &RideGeometry| {
+        g.speed_for_angle(certified)
+            .map(crate::units::AngularSpeed::rad_per_s)
+            .map_err(|_| ParamError::OutOfRange("certified_angle_deg"))
+    };
+    let grid_top = smaller(top(&short)?, smaller(top(geometry)?, top(&long)?));
+    Ok((short, long, certified, grid_top))
 }
 
-fn magnitude_piece(env: &SwingEnvelope, r: &mut f32, m1: f32, m2: f32, u: f32) -> f32 {
+/// One length's envelope on the common grid (its own frame: the M0's stack).
+#[inline(never)]
+fn envelope_on(
+    geometry: &RideGeometry,
+    certified: Angle,
+    grid_top: f32,
+) -> Result<SwingEnvelope, ParamError> {
+    SwingEnvelope::with_grid_top(geometry, certified, grid_top)
+}
+
+/// Folds the three lengths' envelopes into `band` (in place, one envelope at
+/// a time: the M0's stack) and returns the lengths' models.
+#[inline(never)]
+fn fill_band(
+    band: &mut BandEnvelope,
+    geometry: &RideGeometry,
+    params: &GovernorParams,
+) -> Result<[SeatModel; LENGTH_MODELS], ParamError> {
+    let (short, long, certified, grid_top) = band_grid(geometry, params)?;
+    let mut models = [SeatModel::new(geometry, 0.0)?; LENGTH_MODELS];
+    for (slot, g) in [(0, &short), (1, geometry), (2, &long)] {
+        let e = envelope_on(g, certified, grid_top)?;
+        if let Some(m) = models.get_mut(slot) {
+            *m = *e.model();
+        }
+        band.fold(slot, &e);
+    }
+    band.finish(params.speed_uncertainty_rad_s);
+    Ok(models)
+}
+
+/// The part of a certificate every candidate target shares.
+struct Prefix {
+    /// Growth of √S up to the braking point (without the present swing), 1/s.
+    grown: f32,
+    /// Smallest slack up to the braking point, 1/s.
+    slack: f32,
+    /// growth_to(|v_ext|).
+    growth_ext: f32,
+    /// Present swing bound √S of each length, 1/s.
+    swings: [f32; LENGTH_MODELS],
+    /// The largest of them, 1/s.
+    swing: f32,
+}
+
+/// One piece of the path from signed speed `from` to `to`: adds its growth to
+/// `r` and returns the smallest slack along it.
+fn piece(
+    band: &BandEnvelope,
+    swings: &[f32; LENGTH_MODELS],
+    r: &mut f32,
+    from: f32,
+    to: f32,
+    u: f32,
+) -> f32 {
+    // Split at zero when the direction of rotation changes.
+    if (from > 0.0 && to < 0.0) || (from < 0.0 && to > 0.0) {
+        let first = magnitude_piece(band, swings, r, libm::fabsf(from), 0.0, u);
+        let second = magnitude_piece(band, swings, r, 0.0, libm::fabsf(to), u);
+        return least(first, second);
+    }
+    magnitude_piece(band, swings, r, libm::fabsf(from), libm::fabsf(to), u)
+}
+
+fn magnitude_piece(
+    band: &BandEnvelope,
+    swings: &[f32; LENGTH_MODELS],
+    r: &mut f32,
+    m1: f32,
+    m2: f32,
+    u: f32,
+) -> f32 {
     if m2 >= m1 {
         // Up: √S grows, the room shrinks; the end is the binding point.
-        *r += env.growth_to(m2) - env.growth_to(m1);
-        env.room(m2 + u) - *r
+        *r += band.growth_to(m2) - band.growth_to(m1);
+        band.room_less(m2 + u, swings) - *r
     } else {
         // Down: the room grows back as the speed falls, √S may grow too;
-        // checked cell by cell.
-        let slack = env.down_slack(*r, m2, m1, u);
-        *r += env.growth_to(m1) - env.growth_to(m2);
+        // checked cell by cell (whole cells from the band's table).
+        let slack = band.down_slack_paired(swings, *r, m2, m1);
+        *r += band.growth_to(m1) - band.growth_to(m2);
         slack
     }
 }
@@ -367,7 +500,7 @@ impl RequestGovernor for SwingGovernor {
         let Some(measured) = input.measured_rad_s else {
             return fault(input);
         };
-        let dt = input.dt_s.min(MAX_ADVANCE_S);
+        let dt = smaller(input.dt_s, MAX_ADVANCE_S);
         let stepped = match self.estimator.advance(measured, dt) {
             Ok(stepped) => stepped,
             Err(EstimatorFault::RestNotConfirmed | EstimatorFault::NotFinite)

@@ -17,11 +17,13 @@
 //! ASTM F2291, ISO 17842, EN ISO 13849-1, IEC 62061, IEC 61508) stay with the
 //! integrator and licensed engineers.
 
+pub mod band;
 #[cfg(feature = "std")]
 pub mod closed_loop;
 pub mod envelope;
 pub mod estimator;
 pub mod governor;
+pub mod link;
 #[cfg(feature = "std")]
 pub mod search;
 

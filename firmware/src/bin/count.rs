@@ -217,7 +217,7 @@ fn swing_governor() {
     // 4: swing governor tick: estimator step (3 lengths, chain) + decision
     measure(4, || governor.govern(black_box(&tick)));
     let v = setpoint.speed.rad_per_s();
-    // 5: swing governor, one certificate evaluation (3 lengths): a decision makes 1 to 3
+    // 5: swing governor, one full certificate evaluation (SwingGovernor::slack: swing bounds of 3 lengths + one path on the band envelope)
     measure(5, || {
         governor.slack(
             black_box(v),
@@ -226,6 +226,25 @@ fn swing_governor() {
             black_box(1.0),
         )
     });
+    // Worst path of a decision: the admitted target far below the commanded
+    // speed, which is near the top and accelerating, so that the trial and the
+    // held target both fail and the fallback is evaluated too, each with a down
+    // move across every cell. One unmeasured tick brings the measured speed there.
+    let high = |w: f32| GovernorInput {
+        clamped_request_rad_s: request,
+        commanded: swingdrive::Setpoint {
+            acceleration_rad_s2: black_box(0.1),
+            ..swingdrive::Setpoint::at_target(AngularSpeed::from_rad_per_s(w))
+        },
+        measured_rad_s: Some(w),
+        dt_s: black_box(0.01),
+        stopping: false,
+    };
+    // (After 4 and 5, on the same governor: one copy fits the M0's stack.)
+    let _ = governor.govern(&high(black_box(1.12)));
+    let tick = high(black_box(1.121));
+    // 6: swing governor tick, worst path: trial, held target and fallback evaluated, down moves across every cell
+    measure(6, || governor.govern(black_box(&tick)));
 }
 
 #[panic_handler]
