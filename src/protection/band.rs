@@ -21,6 +21,9 @@ fn at<const N: usize>(table: &[f32; N], i: usize, fallback: f32) -> f32 {
     table.get(i).copied().unwrap_or(fallback)
 }
 
+/// (V_eq, dV_eq/dω) of each length at one grid speed.
+type Row = [(f32, f32); LENGTH_MODELS];
+
 /// The folded envelope of the length band (see the module documentation).
 #[derive(Debug, Clone, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -31,10 +34,11 @@ pub struct BandEnvelope {
     cell_scale: f32,
     /// Grid speeds g_i = top·√(i/N), rad/s.
     speeds: [f32; CELLS + 1],
-    /// Per length, V_eq at the grid speeds (its chords bound V_eq from below).
-    v_eq: [[f32; CELLS + 1]; LENGTH_MODELS],
-    /// Per length, dV_eq/dω at the grid speeds (its tangents bound V_eq from above).
-    v_eq_slope: [[f32; CELLS + 1]; LENGTH_MODELS],
+    /// Per grid speed, per length, (V_eq, dV_eq/dω) there: the chords of V_eq
+    /// bound it from below, its tangents from above. Stored by grid speed so
+    /// that one cell's values of all lengths lie together (fewer address
+    /// computations per look-up on the target).
+    tangents: [[(f32, f32); LENGTH_MODELS]; CELLS + 1],
     /// Per length, (b cos φc, ½ c²): E_adm(ω) = −b cos φc − ½ c² ω².
     cone: [(f32, f32); LENGTH_MODELS],
     /// Per cell, the least room over the lengths at the cell's upper end, 1/s
@@ -73,8 +77,7 @@ impl BandEnvelope {
             top_rad_s: 0.0,
             cell_scale: 0.0,
             speeds: [0.0; CELLS + 1],
-            v_eq: [[0.0; CELLS + 1]; LENGTH_MODELS],
-            v_eq_slope: [[0.0; CELLS + 1]; LENGTH_MODELS],
+            tangents: [[(0.0, 0.0); LENGTH_MODELS]; CELLS + 1],
             cone: [(0.0, 0.0); LENGTH_MODELS],
             room: [0.0; CELLS],
             growth: [0.0; CELLS],
@@ -97,14 +100,18 @@ impl BandEnvelope {
             self.room = *envelope.room_cells();
             self.growth = *envelope.growth_cells();
         }
-        if let (Some(v), Some(d), Some(c)) = (
-            self.v_eq.get_mut(slot),
-            self.v_eq_slope.get_mut(slot),
-            self.cone.get_mut(slot),
-        ) {
-            *v = *envelope.v_eq_grid();
-            *d = *envelope.v_eq_slope_grid();
+        if let Some(c) = self.cone.get_mut(slot) {
             *c = envelope.cone();
+        }
+        for ((row, &v), &d) in self
+            .tangents
+            .iter_mut()
+            .zip(envelope.v_eq_grid().iter())
+            .zip(envelope.v_eq_slope_grid().iter())
+        {
+            if let Some(t) = row.get_mut(slot) {
+                *t = (v, d);
+            }
         }
         for ((r, g), (&er, &eg)) in self.room.iter_mut().zip(self.growth.iter_mut()).zip(
             envelope
@@ -148,6 +155,17 @@ impl BandEnvelope {
         self.u
     }
 
+    /// The (V_eq, dV_eq/dω) of the lengths at grid speeds `i` and `i + 1`
+    /// (zeros past the end, never taken: the cells are in range by
+    /// construction; the fallback keeps the code free of panics).
+    fn rows(&self, i: usize) -> (&Row, &Row) {
+        const ZERO: Row = [(0.0, 0.0); LENGTH_MODELS];
+        (
+            self.tangents.get(i).unwrap_or(&ZERO),
+            self.tangents.get(i + 1).unwrap_or(&ZERO),
+        )
+    }
+
     /// Cell of speed magnitude `w` (`None` at or above the top or not finite):
     /// ⌊ω² N / top²⌋ corrected by one comparison each way.
     fn cell(&self, w: f32) -> Option<usize> {
@@ -179,9 +197,13 @@ impl BandEnvelope {
             // At or above the top (or NaN): the chord's value at the top.
             None => (CELLS - 1, if w.is_nan() { w } else { 1.0 }),
         };
+        let (r0, r1) = self.rows(i);
         let mut out = [0.0_f32; LENGTH_MODELS];
-        for ((o, v), &e) in out.iter_mut().zip(self.v_eq.iter()).zip(jacobi.iter()) {
-            let (v0, v1) = (at(v, i, 0.0), at(v, i + 1, 0.0));
+        for ((o, (&(v0, _), &(v1, _))), &e) in out
+            .iter_mut()
+            .zip(r0.iter().zip(r1.iter()))
+            .zip(jacobi.iter())
+        {
             let d = e - (v0 + (v1 - v0) * t);
             // NaN stays NaN (the certificate then fails).
             *o = crate::math::sqrt(if d > 0.0 || d.is_nan() { d } else { 0.0 });
@@ -213,16 +235,15 @@ impl BandEnvelope {
             w - at(&self.speeds, i, 0.0),
             w - at(&self.speeds, i + 1, 0.0),
         );
+        let (r0, r1) = self.rows(i);
         let mut slack = f32::INFINITY;
-        for (((v, d), &(c0, c1)), &s) in self
-            .v_eq
+        for ((&(v0, s0), &(v1, s1)), (&(c0, c1), &s)) in r0
             .iter()
-            .zip(self.v_eq_slope.iter())
-            .zip(self.cone.iter())
-            .zip(swings.iter())
+            .zip(r1.iter())
+            .zip(self.cone.iter().zip(swings.iter()))
         {
-            let t0 = at(v, i, 0.0) + at(d, i, 0.0) * d0;
-            let t1 = at(v, i + 1, 0.0) + at(d, i + 1, 0.0) * d1;
+            let t0 = v0 + s0 * d0;
+            let t1 = v1 + s1 * d1;
             let e_adm = -c0 - c1 * w * w;
             let room = crate::math::sqrt(larger(e_adm - smaller(t0, t1), 0.0));
             slack = least(slack, room - s);
@@ -244,15 +265,11 @@ impl BandEnvelope {
             w - at(&self.speeds, i, 0.0),
             w - at(&self.speeds, i + 1, 0.0),
         );
+        let (r0, r1) = self.rows(i);
         let mut t_cap = f32::INFINITY;
-        for ((v, d), &(c0, c1)) in self
-            .v_eq
-            .iter()
-            .zip(self.v_eq_slope.iter())
-            .zip(self.cone.iter())
-        {
-            let t0 = at(v, i, 0.0) + at(d, i, 0.0) * d0;
-            let t1 = at(v, i + 1, 0.0) + at(d, i + 1, 0.0) * d1;
+        for ((&(v0, s0), &(v1, s1)), &(c0, c1)) in r0.iter().zip(r1.iter()).zip(self.cone.iter()) {
+            let t0 = v0 + s0 * d0;
+            let t1 = v1 + s1 * d1;
             // Same operations, in the same order, as SwingEnvelope::room.
             let e_adm = -c0 - c1 * w * w;
             t_cap = smaller(t_cap, e_adm - smaller(t0, t1));
