@@ -325,7 +325,7 @@ impl BandEnvelope {
             slack = least(slack, end_cell(last));
         }
         let mut m = f32::INFINITY;
-        for &t in self.down.iter().take(last).skip(first + 1) {
+        for &t in self.down.get(first + 1..last).unwrap_or(&[]) {
             m = least(m, t);
         }
         least(slack, m - start - top_g)
@@ -367,7 +367,7 @@ impl BandEnvelope {
             slack = least(slack, end_cell(last));
         }
         let mut m = f32::INFINITY;
-        for &t in self.down.iter().take(last).skip(first + 1) {
+        for &t in self.down.get(first + 1..last).unwrap_or(&[]) {
             m = least(m, t);
         }
         least(slack, m - largest - start - top_g)
