@@ -57,6 +57,17 @@ fn pumping(g: &RideGeometry, ceiling: f32, detune: f64, duration_s: f64) -> Scen
     }
 }
 
+/// Uniform numbers in [0, 1) from a xorshift64 generator (Marsaglia, "Xorshift
+/// RNGs", J. Stat. Software 2003): repeatable demo inputs for the random checks.
+fn uniform(mut seed: u64) -> impl FnMut() -> f32 {
+    move || {
+        seed ^= seed << 13;
+        seed ^= seed >> 7;
+        seed ^= seed << 17;
+        (seed >> 11) as f32 / (1u64 << 53) as f32
+    }
+}
+
 #[test]
 fn envelope_level_set_boundary_is_never_below_the_admissible_energy() {
     // Step 1 of the argument: on the cone φ = φc the effective potential is at least
@@ -275,13 +286,7 @@ fn swing_energy_grows_no_faster_than_the_bound_while_the_speed_changes() {
     // Step 4: √S(t) ≤ √S(0) + ∫ ½ G |dω| along any speed history (the pumping bound),
     // checked on the f32 model with the envelope's own cell bounds over random
     // jerky speed histories (demo data: piecewise-constant accelerations up to 0.3 rad/s²).
-    let mut seed = 0x2545_f491_u64;
-    let mut next = move || {
-        seed ^= seed << 13;
-        seed ^= seed >> 7;
-        seed ^= seed << 17;
-        (seed >> 11) as f32 / (1u64 << 53) as f32
-    };
+    let mut next = uniform(0x2545_f491_u64);
     for suspension in [Suspension::Chain, Suspension::Rod] {
         let g = issue_ride(suspension);
         let env = SwingEnvelope::new(&g, Angle::from_deg(50.0)).unwrap();
@@ -555,13 +560,7 @@ fn band_envelope_folds_the_three_lengths_conservatively() {
     // fall below any length's, and its swing bound must not fall below any length's
     // (each length's own envelope on the common grid is the reference; hand
     // calculation, common practice). Chains and rods, random states and speeds.
-    let mut seed = 0x9e37_79b9_u64;
-    let mut next = move || {
-        seed ^= seed << 13;
-        seed ^= seed >> 7;
-        seed ^= seed << 17;
-        (seed >> 11) as f32 / (1u64 << 53) as f32
-    };
+    let mut next = uniform(0x9e37_79b9_u64);
     for suspension in [Suspension::Chain, Suspension::Rod] {
         let g = issue_ride(suspension);
         let params = GovernorParams::demo(&g, 50.0, 0.05);
@@ -618,13 +617,7 @@ fn down_slack_from_the_table_equals_the_cell_by_cell_check() {
     // The governor reads a down move's slack from the per-cell terms of the band's
     // envelope (one comparison per whole cell); it must give the cell-by-cell check,
     // up to f32 rounding (1e-5), on pieces of every length, partly above the top too.
-    let mut seed = 0x9e37_79b9_u64;
-    let mut next = move || {
-        seed ^= seed << 13;
-        seed ^= seed >> 7;
-        seed ^= seed << 17;
-        (seed >> 11) as f32 / (1u64 << 53) as f32
-    };
+    let mut next = uniform(0x9e37_79b9_u64);
     for suspension in [Suspension::Chain, Suspension::Rod] {
         let g = issue_ride(suspension);
         for u in [0.0_f32, 0.005, 0.02] {
